@@ -1,0 +1,107 @@
+"""Small SVG-writing pieces shared by the pictures: escaping, numbers, scales, palette.
+
+The pictures are plain strings with presentation attributes (no external files, no
+ids, no script), so they look the same inlined in the page, in a standalone sheet and
+in print, and two pictures on one page cannot clash.
+"""
+
+from __future__ import annotations
+
+import math
+from xml.sax.saxutils import escape
+
+#: Text face for every picture: the fonts a browser is sure to have last.
+FONT_FAMILY = "'DejaVu Sans', 'Segoe UI', system-ui, sans-serif"
+
+#: Neutral inks.
+INK = "#222222"
+GRID = "#d4d4d4"
+GRID_STRONG = "#9a9a9a"
+
+#: Voltage/current colour pairs, cycled per element. Chosen for this project so that
+#: within a pair and across pairs the colours differ in lightness and on the blue-yellow
+#: axis, which red-green colour-blind readers still see; the line style (solid V,
+#: dashed I) carries the distinction as well.
+PAIRS = (
+    ("#1f4e99", "#d1651c"),  # deep blue / orange
+    ("#0f7b6c", "#b0337c"),  # teal / magenta
+    ("#5a3d9a", "#9c7a00"),  # violet / ochre
+    ("#2b2b2b", "#3f9fd8"),  # near black / sky blue
+)
+
+#: Dash patterns: voltage solid, current dashed, power dash-dot.
+DASH_CURRENT = "7 4"
+DASH_POWER = "11 3 2 3"
+
+_NICE_STEPS = (1.0, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0)
+
+
+def nice_ceiling(x: float) -> float:
+    """The smallest 'round' number (1, 1.5, 2, 2.5, 3, 4, 5, 6, 8 × 10ⁿ) ≥ x > 0.
+
+    Steps this fine keep the largest arrow or trace above two thirds of the scale.
+    """
+    if not (x > 0 and math.isfinite(x)):
+        return 1.0
+    decade = 10.0 ** math.floor(math.log10(x))
+    for step in _NICE_STEPS:
+        if step * decade >= x * (1 - 1e-12):
+            return step * decade
+    return 10.0 * decade
+
+
+def num(x: float) -> str:
+    """A coordinate: three decimals, zeros trimmed (keeps files small, geometry exact enough)."""
+    text = f"{x:.3f}".rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
+
+
+def attrs(**kw) -> str:
+    """``key="value"`` pairs; ``_`` in a key becomes ``-``; None values are left out."""
+    parts = []
+    for key, value in kw.items():
+        if value is None:
+            continue
+        key = key.rstrip("_").replace("_", "-")
+        if isinstance(value, float):
+            value = num(value)
+        parts.append(f'{key}="{escape(str(value), {chr(34): "&quot;"})}"')
+    return " ".join(parts)
+
+
+def tag(name: str, content: str | None = None, **kw) -> str:
+    """One element; ``content`` is already-escaped markup (use `text` for plain text)."""
+    a = attrs(**kw)
+    head = f"<{name} {a}" if a else f"<{name}"
+    return f"{head}/>" if content is None else f"{head}>{content}</{name}>"
+
+
+def text(x: float, y: float, words: str, halo: bool = True, **kw) -> str:
+    """A text element; a white halo keeps it readable where it crosses lines."""
+    if halo:
+        kw.setdefault("stroke", "#ffffff")
+        kw.setdefault("stroke_width", "3")
+        kw.setdefault("paint_order", "stroke")
+        kw.setdefault("stroke_linejoin", "round")
+    kw.setdefault("fill", INK)
+    return tag("text", escape(words), x=float(x), y=float(y), **kw)
+
+
+def title(words: str) -> str:
+    """A ``<title>`` child: the browser shows it on hover."""
+    return f"<title>{escape(words)}</title>"
+
+
+def svg_root(css_class: str, width: int, height: int, label: str, body: list[str],
+             style: str = "") -> str:
+    """The outer ``<svg>`` with a white background, an accessible title and ``body``."""
+    head = (f'<svg xmlns="http://www.w3.org/2000/svg" class="{css_class}" '
+            f'{attrs(width=width, height=height, viewBox=f"0 0 {width} {height}")} '
+            f'role="img" {attrs(aria_label=label, font_family=FONT_FAMILY, font_size=12)}>')
+    parts = [head, title(label)]
+    if style:
+        parts.append(f"<style>{style}</style>")
+    parts.append(tag("rect", x=0, y=0, width=width, height=height, fill="#ffffff"))
+    parts.extend(body)
+    parts.append("</svg>")
+    return "\n".join(parts)

@@ -1,0 +1,98 @@
+"""The error tree of phasorbench: every failure the core can report to a user.
+
+The core never knows HTTP codes or exit statuses; the command line and the web
+app each map these classes once.
+
+    PhasorbenchError                 base of everything the core raises on purpose
+    ├── CircuitError                 the input is wrong; carries a list of Diagnostics
+    │   ├── CircuitSyntaxError       a line could not be read (line, column, span, hint)
+    │   ├── CircuitStructureError    the circuit reads but cannot be solved as drawn
+    │   └── AnalysisError            the equations failed numerically (singular, NaN)
+
+A ``Diagnostic`` is one message with its place; a ``CircuitError`` holds all the
+diagnostics of one pass (errors and warnings), so a user sees every problem at once. All three are the user's to fix, so the
+command line exits 2 and the API answers 422 for any ``CircuitError``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Diagnostic:
+    """One message about the input, with its place when it has one.
+
+    ``line`` and ``column`` count from 1; ``length`` is the width of the caret span.
+    ``severity`` is ``"error"`` or ``"warning"``.
+    """
+
+    message: str
+    hint: str = ""
+    line: int | None = None
+    column: int | None = None
+    length: int = 1
+    severity: str = "error"
+
+    def as_dict(self) -> dict:
+        """The contract's shape: ``{"line", "column", "message", "hint"}``."""
+        return {"line": self.line, "column": self.column,
+                "message": self.message, "hint": self.hint}
+
+
+class PhasorbenchError(Exception):
+    """Base of every error the core raises on purpose."""
+
+
+class CircuitError(PhasorbenchError):
+    """The input circuit is wrong; ``diagnostics`` lists every problem found."""
+
+    def __init__(self, diagnostics: list[Diagnostic]):
+        self.diagnostics = list(diagnostics)
+        first = next((d for d in self.diagnostics if d.severity == "error"),
+                     self.diagnostics[0] if self.diagnostics else None)
+        super().__init__(first.message if first else "invalid circuit")
+
+    @property
+    def errors(self) -> list[Diagnostic]:
+        return [d for d in self.diagnostics if d.severity == "error"]
+
+
+class CircuitSyntaxError(CircuitError):
+    """A line of the circuit text could not be read."""
+
+
+class CircuitStructureError(CircuitError):
+    """The circuit reads, but its structure has no unique solution."""
+
+
+class AnalysisError(CircuitError):
+    """The equations could not be solved numerically (singular matrix, NaN)."""
+
+
+def format_diagnostic(diagnostic: Diagnostic, filename: str, text: str | None = None) -> str:
+    """``FILE:LINE:COL: error: message``, the source line, a caret span and the hint.
+
+    >>> d = Diagnostic("bad", "fix it", line=1, column=3, length=2)
+    >>> print(format_diagnostic(d, "f.circuit", "R1 x9"))
+    f.circuit:1:3: error: bad
+      R1 x9
+        ^^
+      hint: fix it
+    """
+    if diagnostic.line is None:
+        head = f"{filename}: {diagnostic.severity}: {diagnostic.message}"
+    else:
+        head = (f"{filename}:{diagnostic.line}:{diagnostic.column or 1}: "
+                f"{diagnostic.severity}: {diagnostic.message}")
+    out = [head]
+    if diagnostic.line is not None and text is not None:
+        lines = text.splitlines()
+        if 0 < diagnostic.line <= len(lines):
+            source = lines[diagnostic.line - 1].expandtabs(1)
+            out.append("  " + source)
+            column = diagnostic.column or 1
+            out.append("  " + " " * (column - 1) + "^" * max(1, diagnostic.length))
+    if diagnostic.hint:
+        out.append(f"  hint: {diagnostic.hint}")
+    return "\n".join(out)

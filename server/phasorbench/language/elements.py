@@ -1,0 +1,375 @@
+"""Reading element lines: ``NAME: KIND TERMINALS VALUE OPTIONS...``.
+
+One method per shape of terminals (two-terminal, transformer, coupling, three-phase
+blocks); values go through ``values.py``; options are read by one loop that knows
+which kinds each option applies to. Three-phase blocks are expanded here into their
+per-phase elements, so the solver never sees a block.
+"""
+
+from __future__ import annotations
+
+import cmath
+import difflib
+import math
+
+from ..model import (CONTROLLED_KINDS, GROUND, Coupling, Element, Group)
+from .expressions import LanguageError, TokenStream
+from .values import expect_unit, parse_angle_radians, parse_value
+
+#: Canonical unit each kind's value takes (None: a plain number).
+KIND_UNITS = {
+    "resistor": "ohm", "capacitor": "F", "inductor": "H", "impedance": "ohm",
+    "admittance": "S", "voltage": "V", "current": "A", "vcvs": None, "vccs": "S",
+    "ccvs": "ohm", "cccs": None, "voltage3": "V", "load3": "ohm",
+}
+ALL_KINDS = tuple(KIND_UNITS) + ("coupling", "transformer")
+
+OPTION_KINDS = {
+    "phase": ("voltage", "current", "voltage3"),
+    "rms": ("voltage", "current", "voltage3"),
+    "peak": ("voltage", "current", "voltage3"),
+    "freq": ("voltage", "current", "voltage3"),
+    "sense": CONTROLLED_KINDS,
+    "tol": ("resistor", "inductor", "capacitor", "impedance"),
+    "line": ("voltage3",),
+    "sequence": ("voltage3",),
+}
+
+_ROOT3 = math.sqrt(3.0)
+
+
+def _canonical_node(text: str) -> str:
+    return GROUND if text == "0" or text.lower() == "gnd" else text
+
+
+class ElementReader:
+    def __init__(self, parser, circuit):
+        self.parser = parser
+        self.circuit = circuit
+        self.source_frequencies: dict[str, float] = {}
+        self.failed_lines = 0
+
+    @staticmethod
+    def is_kind(word: str) -> bool:
+        return word.lower() in ALL_KINDS
+
+    # -- shared pieces -------------------------------------------------------------
+
+    def stream(self, tokens):
+        return TokenStream(tokens, self.parser.lookup)
+
+    def node(self, stream: TokenStream, what: str = "node") -> str:
+        """A node name, ground spelt "0"."""
+        return _canonical_node(self.chunk(stream, what))
+
+    def chunk(self, stream: TokenStream, what: str) -> str:
+        """One token and every token glued to it (so '3a' or 'bus.1' read whole)."""
+        token = stream.peek()
+        if token is None or token.kind not in ("word", "number"):
+            raise stream.fail_here(f"missing {what}", "terminals are written p -> n")
+        text = stream.take().text
+        while True:
+            nxt = stream.peek()
+            if nxt is None or not nxt.glued or nxt.kind not in ("word", "number"):
+                break
+            text += stream.take().text
+        return text
+
+    def arrow(self, stream: TokenStream) -> None:
+        token = stream.peek()
+        if token is None or token.kind != "arrow":
+            raise stream.fail_here("expected '->' between the terminals",
+                                   "write the reference direction, e.g. a -> b")
+        stream.take()
+
+    def two_nodes(self, stream: TokenStream) -> tuple[str, str]:
+        p = self.node(stream, "first terminal")
+        self.arrow(stream)
+        n = self.node(stream, "second terminal")
+        return p, n
+
+    def value(self, stream: TokenStream, kind: str, what: str = "value") -> complex:
+        first = stream.peek()
+        q = parse_value(stream, what)
+        last = stream.tokens[stream.pos - 1]
+        span = (first.start, last.end)
+        expect_unit(q, KIND_UNITS[kind], kind, span, self.line.text[span[0]:span[1]])
+        return q.value, span
+
+    # -- the line ----------------------------------------------------------------------
+
+    def read(self, line) -> None:
+        self.line = line
+        name_token, _colon, *rest = line.tokens
+        name = name_token.text
+        if not rest:
+            raise LanguageError(f"element '{name}' has no kind",
+                                "e.g. R1: resistor a -> b 10 ohm", _colon.start, _colon.end)
+        kind_token = rest[0]
+        kind = kind_token.text.lower()
+        if kind not in ALL_KINDS:
+            self.failed_lines += 1
+            close = difflib.get_close_matches(kind, ALL_KINDS, n=1)
+            hint = f"did you mean '{close[0]}'?" if close else "kinds: " + ", ".join(ALL_KINDS)
+            raise LanguageError(f"'{kind_token.text}' is not an element kind", hint,
+                                kind_token.start, kind_token.end)
+        stream = self.stream(rest[1:])
+        self.failed_lines += 1          # undone below when the line reads cleanly
+        if kind == "coupling":
+            self.coupling(name, stream)
+        elif kind == "transformer":
+            self.transformer(name, stream)
+        elif kind in ("voltage3", "load3"):
+            self.three_phase(name, kind, stream)
+        else:
+            self.two_terminal(name, kind, stream)
+        self.failed_lines -= 1
+
+    def two_terminal(self, name: str, kind: str, stream: TokenStream) -> None:
+        p, n = self.two_nodes(stream)
+        value, span = self.value(stream, kind)
+        options = self.options(stream, kind)
+        self.check_passive_value(kind, value, span)
+        element = Element(name, kind, (p, n), value, self.line.number)
+        if kind in ("voltage", "current"):
+            element.value = self.source_phasor(value, options)
+            element.frequency = options.get("freq")
+            if element.frequency is not None:
+                self.source_frequencies[name] = element.frequency
+        if kind in CONTROLLED_KINDS:
+            if "sense" not in options:
+                hint = ("e.g. sense in -> 0" if kind in ("vcvs", "vccs")
+                        else "e.g. sense Rsense")
+                raise LanguageError(f"{kind} '{name}' needs a 'sense' option (what controls "
+                                    "it)", hint, self.line.tokens[0].start,
+                                    self.line.tokens[-1].end)
+            sense = options["sense"]
+            if kind in ("vcvs", "vccs"):
+                if isinstance(sense, str):
+                    raise LanguageError(f"a {kind} senses a voltage: write 'sense c -> d'",
+                                        "e.g. sense in -> 0", *options["sense_span"])
+                element.sense_nodes = sense
+            else:
+                if not isinstance(sense, str):
+                    raise LanguageError(f"a {kind} senses an element's current: write "
+                                        "'sense ELEMENT'", "e.g. sense Rsense",
+                                        *options["sense_span"])
+                element.sense_element = sense
+        element.tolerance = options.get("tol")
+        self.circuit.elements[name] = element
+
+    def check_passive_value(self, kind: str, value: complex, span) -> None:
+        if kind in ("resistor", "capacitor", "inductor") and value.imag != 0:
+            raise LanguageError(f"a {kind} value must be real; this one is complex",
+                                "use 'impedance' for a complex value", *span)
+        if kind in ("capacitor", "inductor") and not value.real > 0:
+            raise LanguageError(f"a {kind} value must be greater than zero", 
+                                "a zero or negative value has no physical meaning here; "
+                                "remove the element or fix the value", *span)
+
+    def source_phasor(self, value: complex, options: dict) -> complex:
+        amplitude = options.get("amplitude", self.parser.amplitudes)
+        if amplitude != self.parser.amplitudes:
+            value = value / math.sqrt(2) if amplitude == "peak" else value * math.sqrt(2)
+        return value * cmath.exp(1j * options.get("phase", 0.0))
+
+    # -- options -------------------------------------------------------------------------
+
+    def options(self, stream: TokenStream, kind: str) -> dict:
+        found: dict = {}
+        while stream.peek() is not None:
+            token = stream.take()
+            word = token.text.lower()
+            if token.kind != "word" or word not in OPTION_KINDS:
+                close = difflib.get_close_matches(word, list(OPTION_KINDS), n=1)
+                hint = (f"did you mean '{close[0]}'?" if close else
+                        "options: " + ", ".join(o for o, k in OPTION_KINDS.items() if kind in k)
+                        if any(kind in k for k in OPTION_KINDS.values()) else
+                        f"a {kind} takes no options")
+                raise LanguageError(f"unexpected '{token.text}'", hint, token.start, token.end)
+            if kind not in OPTION_KINDS[word]:
+                raise LanguageError(f"'{word}' does not apply to a {kind}",
+                                    f"'{word}' applies to: " + ", ".join(OPTION_KINDS[word]),
+                                    token.start, token.end)
+            key = "amplitude" if word in ("rms", "peak") else word
+            if key in found:
+                raise LanguageError(f"'{word}' is given twice", "keep one", token.start,
+                                    token.end)
+            if word in ("rms", "peak"):
+                found[key] = word
+            elif word == "line":
+                found[key] = True
+            elif word == "phase":
+                found[key] = parse_angle_radians(stream)
+            elif word == "freq":
+                first = stream.peek()
+                q = parse_value(stream, "frequency")
+                span = (first.start, stream.tokens[stream.pos - 1].end)
+                expect_unit(q, "Hz", "frequency", span, self.line.text[span[0]:span[1]])
+                if q.value.imag != 0 or not q.value.real > 0:
+                    raise LanguageError("freq must be a real number greater than zero",
+                                        "e.g. freq 50 Hz", *span)
+                found[key] = q.value.real
+            elif word == "sense":
+                first = stream.peek()
+                raw = self.chunk(stream, "sensed element or nodes")
+                if stream.peek() is not None and stream.peek().kind == "arrow":
+                    stream.take()
+                    found[key] = (_canonical_node(raw), self.node(stream, "second sensed node"))
+                else:
+                    found[key] = raw
+                found["sense_span"] = (first.start, stream.tokens[stream.pos - 1].end)
+            elif word == "tol":
+                found[key] = self.tolerance(stream, token)
+            elif word == "sequence":
+                seq = stream.peek()
+                if seq is None or seq.text.lower() not in ("abc", "acb"):
+                    raise stream.fail_here("sequence must be abc or acb", "e.g. sequence acb")
+                found[key] = stream.take().text.lower()
+        return found
+
+    def tolerance(self, stream: TokenStream, option_token) -> float:
+        token = stream.peek()
+        if token is None or token.kind != "number":
+            raise stream.fail_here("tol needs a percentage", "e.g. tol 10%")
+        stream.take()
+        value = float(token.text)
+        if stream.at("%"):
+            stream.take()
+        if not 0 <= value < 100:
+            raise LanguageError("a tolerance must be between 0 % and 100 %", "e.g. tol 5%",
+                                token.start, token.end)
+        return value / 100.0
+
+    # -- other shapes ----------------------------------------------------------------
+
+    def transformer(self, name: str, stream: TokenStream) -> None:
+        p1, n1 = self.two_nodes(stream)
+        if not stream.at(","):
+            raise stream.fail_here("a transformer has two windings: write p1 -> n1, p2 -> n2",
+                                   "e.g. T1: transformer a -> 0, b -> 0 ratio 10:1")
+        stream.take()
+        p2, n2 = self.two_nodes(stream)
+        token = stream.peek()
+        if token is not None and token.kind == "word" and token.text.lower() == "ratio":
+            stream.take()
+        first = stream.peek()
+        primary = parse_value(stream, "turns ratio")
+        secondary = None
+        if stream.at(":"):
+            stream.take()
+            secondary = parse_value(stream, "turns ratio")
+        span = (first.start, stream.tokens[stream.pos - 1].end)
+        for q in (primary, secondary):
+            if q is not None:
+                expect_unit(q, None, "turns ratio", span, self.line.text[span[0]:span[1]])
+        if stream.peek() is not None:
+            raise stream.fail_here(f"unexpected '{stream.peek().text}'",
+                                   "a transformer line ends with its ratio, e.g. ratio 10:1")
+        values = [primary.value] + ([secondary.value] if secondary else [])
+        if any(v.imag != 0 or v.real == 0 for v in values):
+            raise LanguageError("a turns ratio must be real and not zero", "e.g. ratio 10:1",
+                                *span)
+        ratio = values[0].real / (values[1].real if len(values) > 1 else 1.0)
+        self.circuit.elements[name] = Element(name, "transformer", (p1, n1, p2, n2),
+                                              complex(ratio), self.line.number)
+
+    def coupling(self, name: str, stream: TokenStream) -> None:
+        inductors = []
+        for which in ("first", "second"):
+            token = stream.peek()
+            if token is None or token.kind != "word":
+                raise stream.fail_here(f"missing the {which} inductor's name",
+                                       "e.g. K1: coupling L1 L2 k 0.95")
+            inductors.append(stream.take().text)
+        token = stream.peek()
+        if token is None or token.text not in ("k", "K", "M", "m"):
+            raise stream.fail_here("give the coupling as 'k VALUE' or 'M VALUE'",
+                                   "e.g. k 0.95 or M 3 mH")
+        stream.take()
+        first = stream.peek()
+        q = parse_value(stream, "coupling value")
+        span = (first.start, stream.tokens[stream.pos - 1].end)
+        raw = self.line.text[span[0]:span[1]]
+        if stream.peek() is not None:
+            raise stream.fail_here(f"unexpected '{stream.peek().text}'",
+                                   "a coupling line ends with its k or M value")
+        if q.value.imag != 0:
+            raise LanguageError("a coupling value must be real", "", *span)
+        by_k = token.text in ("k", "K")
+        expect_unit(q, None if by_k else "H", "coupling factor k" if by_k else "mutual "
+                    "inductance M", span, raw)
+        self.circuit.couplings[name] = Coupling(
+            name, (inductors[0], inductors[1]), k=q.value.real if by_k else None,
+            m=None if by_k else q.value.real, line=self.line.number)
+
+    def three_phase(self, name: str, kind: str, stream: TokenStream) -> None:
+        connection = "wye"
+        if kind == "load3":
+            token = stream.peek()
+            if token is None or token.text.lower() not in ("wye", "delta"):
+                raise stream.fail_here("a load3 block is 'wye' or 'delta'",
+                                       "e.g. M1: load3 wye a b c -> n 8 + j6 ohm")
+            connection = stream.take().text.lower()
+        lines = tuple(self.node(stream, f"line {p}") for p in "abc")
+        neutral = None
+        if stream.peek() is not None and stream.peek().kind == "arrow":
+            if connection == "delta":
+                raise stream.fail_here("a delta block has no star point",
+                                       "remove '-> n' or use wye")
+            stream.take()
+            neutral = self.node(stream, "star point")
+        values = [self.value(stream, kind)[0]]
+        while kind == "load3" and stream.at(","):
+            stream.take()
+            values.append(self.value(stream, kind)[0])
+        if len(values) not in (1, 3):
+            raise LanguageError("give one impedance (balanced) or three (one per phase)",
+                                "e.g. 10 ohm, 8+j6 ohm, 6-j8 ohm", self.line.tokens[0].start,
+                                self.line.tokens[-1].end)
+        options = self.options(stream, kind)
+        star = neutral if neutral is not None else f"{name}.n"
+        group_nodes = star if connection == "wye" else None
+        if kind == "voltage3":
+            magnitude = values[0] / _ROOT3 if options.get("line") else values[0]
+            base = self.source_phasor(magnitude, options)
+            step = 1 if options.get("sequence", "abc") == "abc" else -1
+            names = []
+            for i, phase in enumerate("abc"):
+                element_name = f"{name}.{phase}"
+                shift = cmath.exp(-1j * math.radians(120.0) * i * step)
+                element = Element(element_name, "voltage", (lines[i], star), base * shift,
+                                  self.line.number, group=name,
+                                  frequency=options.get("freq"))
+                if element.frequency is not None:
+                    self.source_frequencies[element_name] = element.frequency
+                self.circuit.elements[element_name] = element
+                names.append(element_name)
+        else:
+            if any(v == 0 for v in values):
+                raise LanguageError("a load3 impedance cannot be zero", "", 
+                                    self.line.tokens[0].start, self.line.tokens[-1].end)
+            zs = values * 3 if len(values) == 1 else values
+            if connection == "wye":
+                pairs = [(f"{name}.{p}", (lines[i], star)) for i, p in enumerate("abc")]
+            else:
+                pairs = [(f"{name}.ab", (lines[0], lines[1])),
+                         (f"{name}.bc", (lines[1], lines[2])),
+                         (f"{name}.ca", (lines[2], lines[0]))]
+            names = []
+            for (element_name, nodes), z in zip(pairs, zs):
+                self.circuit.elements[element_name] = Element(
+                    element_name, "impedance", nodes, z, self.line.number, group=name)
+                names.append(element_name)
+        for element_name in names:
+            if element_name in self.parser.defined_at:
+                raise LanguageError(f"'{element_name}' is defined twice (first at line "
+                                    f"{self.parser.defined_at[element_name]})",
+                                    "rename the block or the element",
+                                    self.line.tokens[0].start, self.line.tokens[0].end)
+            self.parser.defined_at[element_name] = self.line.number
+        self.circuit.groups[name] = Group(name, kind, connection, lines, group_nodes,
+                                          tuple(names), self.line.number)
+
+    def finish(self) -> None:
+        """Nothing is pending after the last line; kept for symmetry with the parser."""

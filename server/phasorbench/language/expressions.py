@@ -1,0 +1,267 @@
+"""The language's own evaluator for numbers, named values and parenthesised expressions.
+
+User text never reaches ``eval``, ``exec`` or a computer-algebra parser: this module
+walks the tokens itself and knows only numbers (with SI prefixes and units), named
+values, ``+ - * / ^``, parentheses, ``pi``, ``sqrt`` and ``j``. Every result is a
+``Quantity``: a complex number and the unit it carries (or ``None`` for a plain number,
+``UNKNOWN_UNIT`` when arithmetic mixed units and the unit cannot be checked).
+"""
+
+from __future__ import annotations
+
+import cmath
+import math
+import re
+from dataclasses import dataclass
+from typing import Callable
+
+from .lexer import Token
+
+UNKNOWN_UNIT = "?"
+
+PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "μ": 1e-6,
+            "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9, "T": 1e12}
+
+# Spellings of every unit the language accepts, mapped to one canonical name.
+UNITS = {"ohm": "ohm", "ohms": "ohm", "Ohm": "ohm", "Ω": "ohm", "Ω": "ohm",
+         "F": "F", "H": "H", "S": "S", "V": "V", "A": "A", "Hz": "Hz",
+         "W": "W", "var": "var", "VA": "VA",
+         "deg": "deg", "°": "deg", "rad": "rad"}
+
+UNIT_NAMES = {"ohm": "ohms (Ω)", "F": "farads (F)", "H": "henries (H)", "S": "siemens (S)",
+              "V": "volts (V)", "A": "amperes (A)", "Hz": "hertz (Hz)", "W": "watts (W)",
+              "var": "vars (var)", "VA": "volt-amperes (VA)", "deg": "degrees",
+              "rad": "radians"}
+
+_IMAGINARY_WORD = re.compile(r"j((?:\d+\.?\d*|\.\d+)(?:[eE]\d+)?)(.*)")
+
+#: Expressions may nest this deep; deeper input is refused rather than overflowing the stack.
+MAX_DEPTH = 60
+
+
+class LanguageError(Exception):
+    """A problem in one line, pointing at columns ``start``..``end`` (0-based)."""
+
+    def __init__(self, message: str, hint: str = "", start: int = 0, end: int = 1):
+        super().__init__(message)
+        self.message = message
+        self.hint = hint
+        self.start = start
+        self.end = max(end, start + 1)
+
+
+@dataclass(frozen=True, slots=True)
+class Quantity:
+    value: complex
+    unit: str | None = None
+
+
+def decode_suffix(word: str) -> tuple[float, str | None, bool] | None:
+    """Read a prefix/unit word: return (multiplier, unit, imaginary) or None if unknown.
+
+    >>> decode_suffix("mH")
+    (0.001, 'H', False)
+    >>> decode_suffix("kj")
+    (1000.0, None, True)
+    """
+    if word in UNITS:
+        return 1.0, UNITS[word], False
+    if word[:1] in PREFIXES and word[1:] in UNITS and UNITS[word[1:]] not in ("deg", "rad"):
+        return PREFIXES[word[0]], UNITS[word[1:]], False
+    if word in PREFIXES:
+        return PREFIXES[word], None, False
+    if word.endswith("j") and (len(word) == 1 or word[:-1] in PREFIXES):
+        return PREFIXES.get(word[:-1], 1.0), None, True
+    return None
+
+
+def suffix_error(token: Token, number_text: str = "") -> LanguageError:
+    text = number_text + token.text
+    return LanguageError(
+        f"'{text}' is not a number with a known prefix or unit",
+        "prefixes: f p n u µ m k M G T (case matters: m milli, M mega); "
+        "units: ohm Ω F H S V A Hz deg rad — e.g. 4.7k, 150 uF, 2.2 mH",
+        token.start - len(number_text), token.end)
+
+
+def imaginary_word(token: Token) -> Quantity | None:
+    """``j5.1`` or ``j4.7k`` as an imaginary number; None when the word is something else."""
+    match = _IMAGINARY_WORD.fullmatch(token.text)
+    if not match:
+        return None
+    number, suffix = match.groups()
+    unit = None
+    scale = 1.0
+    if suffix:
+        decoded = decode_suffix(suffix)
+        if decoded is None or decoded[2]:
+            raise suffix_error(token)
+        scale, unit, _ = decoded
+    return Quantity(1j * float(number) * scale, unit)
+
+
+class TokenStream:
+    """A cursor over a slice of tokens with helpers for the grammars built on it."""
+
+    def __init__(self, tokens: list[Token], lookup: Callable[[Token], Quantity]):
+        self.tokens = tokens
+        self.pos = 0
+        self.lookup = lookup
+        self.depth = 0
+
+    def peek(self, offset: int = 0) -> Token | None:
+        i = self.pos + offset
+        return self.tokens[i] if i < len(self.tokens) else None
+
+    def take(self) -> Token:
+        token = self.tokens[self.pos]
+        self.pos += 1
+        return token
+
+    def at(self, *texts: str) -> bool:
+        token = self.peek()
+        return token is not None and token.kind == "punct" and token.text in texts
+
+    def end_column(self) -> int:
+        return self.tokens[-1].end if self.tokens else 0
+
+    def fail_here(self, message: str, hint: str = "") -> LanguageError:
+        token = self.peek()
+        if token is None:
+            end = self.end_column()
+            return LanguageError(message, hint, end, end + 1)
+        return LanguageError(message, hint, token.start, token.end)
+
+    # -- atoms shared by the value grammar and expressions ------------------------
+
+    def number(self) -> Quantity:
+        """A number token with an optional glued prefix/unit/j word."""
+        token = self.take()
+        value = complex(float(token.text))
+        unit = None
+        follower = self.peek()
+        if follower is not None and follower.glued and follower.kind == "word":
+            decoded = decode_suffix(follower.text)
+            if decoded is None:
+                raise suffix_error(follower, token.text)
+            self.take()
+            scale, unit, imaginary = decoded
+            value *= scale * (1j if imaginary else 1)
+        return Quantity(value, unit)
+
+    def word_atom(self) -> Quantity:
+        token = self.take()
+        imag = imaginary_word(token)
+        if imag is not None:
+            return imag
+        if token.text == "pi":
+            return Quantity(complex(math.pi))
+        if token.text == "j":
+            return Quantity(1j)
+        if token.text == "sqrt":
+            if not self.at("("):
+                raise LanguageError("sqrt needs parentheses", "write sqrt(2)",
+                                    token.start, token.end)
+            inner = self.parenthesised()
+            unit = None if inner.unit is None else UNKNOWN_UNIT
+            return Quantity(cmath.sqrt(inner.value), unit)
+        return self.lookup(token)
+
+    def parenthesised(self) -> Quantity:
+        opening = self.take()
+        self.depth += 1
+        if self.depth > MAX_DEPTH:
+            raise LanguageError("expression nested too deeply", "", opening.start, opening.end)
+        if self.at(")"):
+            raise LanguageError("empty parentheses", "put an expression inside ( )",
+                                opening.start, self.peek().end)
+        result = self.expression()
+        if not self.at(")"):
+            if self.peek() is None:
+                raise LanguageError("'(' is never closed", "add the missing ')'",
+                                    opening.start, opening.end)
+            raise self.fail_here(f"unexpected '{self.peek().text}' in the expression",
+                                 "expressions allow numbers, names, + - * / ^, ( ), pi, sqrt, j")
+        self.take()
+        self.depth -= 1
+        return result
+
+    # -- expressions (inside parentheses) -----------------------------------------
+
+    def expression(self) -> Quantity:
+        left = self.product()
+        while self.at("+", "-"):
+            op = self.take().text
+            right = self.product()
+            value = left.value + right.value if op == "+" else left.value - right.value
+            left = Quantity(value, left.unit if left.unit == right.unit else UNKNOWN_UNIT)
+        return _finite(left, self)
+
+    def product(self) -> Quantity:
+        left = self.power()
+        while self.at("*", "/"):
+            op_token = self.take()
+            right = self.power()
+            if op_token.text == "*":
+                left = Quantity(left.value * right.value, _product_unit(left.unit, right.unit))
+            else:
+                if right.value == 0:
+                    raise LanguageError("division by zero", "check the divisor",
+                                        op_token.start, op_token.end)
+                left = Quantity(left.value / right.value, _quotient_unit(left.unit, right.unit))
+        return left
+
+    def power(self) -> Quantity:
+        if self.at("-", "+"):
+            sign = -1 if self.take().text == "-" else 1
+            inner = self.power()
+            return Quantity(sign * inner.value, inner.unit)
+        base = self.atom()
+        if self.at("^"):
+            op_token = self.take()
+            exponent = self.power()
+            try:
+                value = base.value ** exponent.value
+            except (ZeroDivisionError, OverflowError):
+                raise LanguageError("this power cannot be computed (zero to a negative "
+                                    "power, or too large)", "", op_token.start, op_token.end)
+            unit = None if base.unit is None and exponent.unit is None else UNKNOWN_UNIT
+            return Quantity(value, unit)
+        return base
+
+    def atom(self) -> Quantity:
+        token = self.peek()
+        if token is None:
+            raise self.fail_here("the expression ends too early", "complete the expression")
+        if token.kind == "number":
+            return self.number()
+        if token.kind == "word":
+            return self.word_atom()
+        if self.at("("):
+            return self.parenthesised()
+        raise self.fail_here(f"unexpected '{token.text}' in the expression",
+                             "expressions allow numbers, names, + - * / ^, ( ), pi, sqrt, j")
+
+
+def _product_unit(a: str | None, b: str | None) -> str | None:
+    if a is None:
+        return b
+    if b is None:
+        return a
+    return UNKNOWN_UNIT
+
+
+def _quotient_unit(a: str | None, b: str | None) -> str | None:
+    if b is None:
+        return a
+    if a == b:
+        return None
+    return UNKNOWN_UNIT
+
+
+def _finite(quantity: Quantity, stream: TokenStream) -> Quantity:
+    v = quantity.value
+    if not (math.isfinite(v.real) and math.isfinite(v.imag)):
+        raise LanguageError("the value is not finite", "every value must be a finite number",
+                            stream.tokens[0].start if stream.tokens else 0, stream.end_column())
+    return quantity

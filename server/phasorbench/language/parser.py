@@ -1,0 +1,307 @@
+"""Reading a whole circuit text into the circuit model, reporting every error in one pass.
+
+Three passes over the lines: directives and named values first (so a value or the
+``amplitudes`` directive may be written anywhere in the file), then element lines
+(``elements.py`` reads each one), then file-level checks (a missing frequency, no
+elements). Every problem becomes a ``Diagnostic``; nothing raises past this module
+except ``CircuitSyntaxError`` holding all of them.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import re
+
+from ..errors import CircuitSyntaxError, Diagnostic
+from ..model import Circuit
+from .elements import ElementReader
+from .expressions import LanguageError, Quantity, TokenStream
+from .lexer import Token, tokenize
+from .values import expect_unit, parse_value
+
+NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
+DIRECTIVES = ("title", "frequency", "amplitudes")
+#: A file larger than this many lines is refused before any work (a guard for pasted junk).
+MAX_LINES = 400_000
+
+
+class _Poisoned(Exception):
+    """A line uses a named value whose own definition failed: already reported there."""
+
+
+class _Line:
+    __slots__ = ("number", "text", "tokens", "kind")
+
+    def __init__(self, number: int, text: str, tokens: list[Token], kind: str):
+        self.number, self.text, self.tokens, self.kind = number, text, tokens, kind
+
+
+class CircuitParser:
+    def __init__(self, text: str, filename: str):
+        self.text = text
+        self.filename = filename
+        self.diagnostics: list[Diagnostic] = []
+        self.assignments: dict[str, _Line] = {}
+        self.values: dict[str, Quantity] = {}
+        self.failed_values: set[str] = set()
+        self.evaluating: list[str] = []
+        self.defined_at: dict[str, int] = {}
+        self.title: str | None = None
+        self.frequency: float | None = None
+        self.amplitudes = "rms"
+        self.directive_lines: dict[str, int] = {}
+
+    # -- diagnostics ------------------------------------------------------------------
+
+    def error(self, line: int | None, message: str, hint: str = "", start: int = 0,
+              end: int | None = None, severity: str = "error") -> None:
+        column = None if line is None else start + 1
+        length = 1 if end is None else max(1, end - start)
+        self.diagnostics.append(Diagnostic(message, hint, line, column, length, severity))
+
+    def language_error(self, line: _Line, exc: LanguageError) -> None:
+        self.error(line.number, exc.message, exc.hint, exc.start, exc.end)
+
+    # -- named values -------------------------------------------------------------------
+
+    def lookup(self, token: Token) -> Quantity:
+        name = token.text
+        if name in self.values:
+            return self.values[name]
+        if name in self.failed_values:
+            raise _Poisoned(name)
+        if name in self.assignments:
+            if name in self.evaluating:
+                chain = " -> ".join(self.evaluating[self.evaluating.index(name):] + [name])
+                raise LanguageError(f"named value '{name}' is defined in terms of itself "
+                                    f"({chain})", "break the circle", token.start, token.end)
+            return self.evaluate_assignment(name)
+        if name in self.element_names:
+            raise LanguageError(f"'{name}' is an element, not a named value",
+                                "use a named value (NAME = VALUE) here", token.start, token.end)
+        close = difflib.get_close_matches(name, list(self.assignments), n=1)
+        hint = f"did you mean '{close[0]}'?" if close else \
+            "define it on its own line, e.g. Cpf = 150 uF (or check the spelling)"
+        raise LanguageError(f"'{name}' is not a number, a unit or a named value", hint,
+                            token.start, token.end)
+
+    def evaluate_assignment(self, name: str) -> Quantity:
+        line = self.assignments[name]
+        self.evaluating.append(name)
+        try:
+            stream = TokenStream(line.tokens[2:], self.lookup)
+            quantity = parse_value(stream, "value")
+            if stream.peek() is not None:
+                tok = stream.peek()
+                raise LanguageError(f"unexpected '{tok.text}' after the value",
+                                    "a named value line is NAME = VALUE", tok.start, tok.end)
+        except LanguageError as exc:
+            if len(self.evaluating) == 1:
+                self.language_error(line, exc)
+                self.failed_values.add(name)
+                raise _Poisoned(name)
+            raise
+        finally:
+            self.evaluating.pop()
+        self.values[name] = quantity
+        return quantity
+
+    # -- the passes -----------------------------------------------------------------
+
+    def classify(self) -> list[_Line]:
+        lines = []
+        for number, raw in enumerate(self.text.splitlines(), start=1):
+            tokens, _comment = tokenize(raw)
+            if not tokens:
+                continue
+            first = tokens[0]
+            second = tokens[1] if len(tokens) > 1 else None
+            if second is not None and second.kind == "punct" and second.text == ":":
+                kind = "element"
+            elif second is not None and second.kind == "punct" and second.text == "=":
+                kind = "assignment"
+            else:
+                kind = "directive"
+            line = _Line(number, raw, tokens, kind)
+            if kind in ("element", "assignment"):
+                if not self.check_name(line, first):
+                    continue
+                if kind == "assignment":
+                    self.assignments[first.text] = line
+            lines.append(line)
+        return lines
+
+    def check_name(self, line: _Line, token: Token) -> bool:
+        name = token.text
+        if not NAME_PATTERN.fullmatch(name):
+            self.error(line.number, f"'{name}' is not a valid name",
+                       "a name is letters, digits and _, starting with a letter",
+                       token.start, token.end)
+            return False
+        if name.lower() in ("j", "pi", "sqrt"):
+            self.error(line.number, f"'{name}' is a reserved word and cannot be a name",
+                       "choose another name", token.start, token.end)
+            return False
+        if name in self.defined_at:
+            self.error(line.number, f"'{name}' is defined twice (first at line "
+                       f"{self.defined_at[name]})", "rename one of them", token.start, token.end)
+            return False
+        self.defined_at[name] = line.number
+        return True
+
+    def directive(self, line: _Line) -> None:
+        first = line.tokens[0]
+        word = first.text.lower()
+        rest = line.tokens[1:]
+        if word in self.directive_lines and word in DIRECTIVES:
+            self.error(line.number, f"'{word}' is given twice (first at line "
+                       f"{self.directive_lines[word]})", "keep one", first.start, first.end)
+            return
+        if word == "title":
+            self.directive_lines[word] = line.number
+            if rest:
+                self.title = line.text[rest[0].start:rest[-1].end].strip()
+            else:
+                self.error(line.number, "title needs a text", "e.g. title Workshop feeder",
+                           first.start, first.end)
+        elif word == "frequency":
+            self.directive_lines[word] = line.number
+            self.frequency = self.read_frequency(line, rest, first)
+        elif word == "amplitudes":
+            self.directive_lines[word] = line.number
+            if len(rest) == 1 and rest[0].text.lower() in ("rms", "peak"):
+                self.amplitudes = rest[0].text.lower()
+            else:
+                at = rest[0] if rest else first
+                self.error(line.number, "amplitudes must be 'rms' or 'peak'",
+                           "e.g. amplitudes rms", at.start, at.end)
+        else:
+            self.unknown_directive(line, first)
+
+    def read_frequency(self, line: _Line, rest: list[Token], first: Token) -> float | None:
+        try:
+            stream = TokenStream(rest, self.lookup)
+            q = parse_value(stream, "frequency")
+            if stream.peek() is not None:
+                tok = stream.peek()
+                raise LanguageError(f"unexpected '{tok.text}' after the frequency",
+                                    "e.g. frequency 60 Hz", tok.start, tok.end)
+            span = (rest[0].start, rest[-1].end)
+            expect_unit(q, "Hz", "frequency", span, line.text[span[0]:span[1]])
+            if abs(q.value.imag) > 0 or not q.value.real > 0:
+                raise LanguageError("the frequency must be a real number greater than zero",
+                                    "e.g. frequency 50 Hz", *span)
+            return q.value.real
+        except LanguageError as exc:
+            self.language_error(line, exc)
+        except _Poisoned:
+            pass
+        return None
+
+    def unknown_directive(self, line: _Line, first: Token) -> None:
+        word = first.text
+        if len(line.tokens) > 1 and line.tokens[1].kind == "word" and \
+                ElementReader.is_kind(line.tokens[1].text):
+            self.error(line.number, f"'{word}' looks like an element but has no ':' after "
+                       "its name", f"write '{word}: {line.tokens[1].text} ...'",
+                       first.start, first.end)
+            return
+        close = difflib.get_close_matches(word.lower(), DIRECTIVES, n=1)
+        hint = (f"did you mean '{close[0]}'?" if close else
+                "a line is a directive (title, frequency, amplitudes), a named value "
+                "(NAME = VALUE) or an element (NAME: KIND ...)")
+        self.error(line.number, f"'{word}' is not a directive", hint, first.start, first.end)
+
+    def run(self) -> tuple[Circuit, list[Diagnostic]]:
+        if "\x00" in self.text:
+            self.error(None, "the file is not text (it holds NUL bytes)",
+                       "give a .circuit text file")
+            return self.empty(), self.diagnostics
+        if self.text.count("\n") > MAX_LINES:
+            self.error(None, f"the file has more than {MAX_LINES} lines",
+                       "split the circuit or check that this is the right file")
+            return self.empty(), self.diagnostics
+        lines = self.classify()
+        self.element_names = {l.tokens[0].text for l in lines if l.kind == "element"}
+        for line in lines:
+            if line.kind == "directive":
+                self.directive(line)
+        for name in list(self.assignments):
+            if name not in self.values and name not in self.failed_values:
+                try:
+                    self.evaluate_assignment(name)
+                except _Poisoned:
+                    pass
+        circuit = self.empty()
+        reader = ElementReader(self, circuit)
+        for line in lines:
+            if line.kind == "element":
+                try:
+                    reader.read(line)
+                except LanguageError as exc:
+                    self.language_error(line, exc)
+                except _Poisoned:
+                    pass
+        reader.finish()
+        self.file_checks(circuit, reader)
+        circuit.values = {k: q.value for k, q in self.values.items()}
+        return circuit, self.diagnostics
+
+    def empty(self) -> Circuit:
+        return Circuit(title=self.title, frequency=self.frequency or 0.0,
+                       amplitudes=self.amplitudes, text=self.text, filename=self.filename)
+
+    def file_checks(self, circuit: Circuit, reader: ElementReader) -> None:
+        if not self.text.strip():
+            self.error(None, "the circuit is empty", "write at least a frequency, a source "
+                       "and a load, e.g.  frequency 50 Hz / V1: voltage a -> 0 230 V / "
+                       "R1: resistor a -> 0 10 ohm")
+            return
+        if not circuit.elements and not reader.failed_lines:
+            self.error(None, "the circuit has no elements (nothing to solve)",
+                       "add elements as NAME: KIND p -> n VALUE")
+        freqs = reader.source_frequencies
+        if self.frequency is None and "frequency" not in self.directive_lines:
+            if freqs and len(set(freqs.values())) == 1 and \
+                    all(e.frequency is not None for e in circuit.elements.values()
+                        if e.kind in ("voltage", "current")):
+                circuit.frequency = next(iter(freqs.values()))
+            elif circuit.elements or reader.failed_lines:
+                self.error(None, "no analysis frequency: add a 'frequency' line",
+                           "e.g. frequency 50 Hz (or give every source its own freq)")
+        elif self.frequency is not None:
+            circuit.frequency = self.frequency
+        if circuit.frequency and freqs:
+            other = {n: f for n, f in freqs.items()
+                     if not math.isclose(f, circuit.frequency, rel_tol=1e-12)}
+            for name, f in other.items():
+                element = circuit.elements[name]
+                self.error(element.line, f"source {name} runs at {f:g} Hz but the circuit is "
+                           f"solved at {circuit.frequency:g} Hz",
+                           "this version solves one frequency at a time: solve each "
+                           "frequency in its own file and add the results (superposition)")
+
+
+def parse_circuit(text: str, filename: str = "<circuit>", *, strict: bool = True):
+    """Read circuit text into a ``Circuit``.
+
+    With ``strict`` (the default) any error raises ``CircuitSyntaxError`` holding every
+    diagnostic; otherwise ``(circuit, diagnostics)`` is returned as far as it could be read.
+
+    >>> c = parse_circuit("frequency 60 Hz\\nR1: resistor a -> 0 4.7k")
+    >>> c.elements["R1"].value
+    (4700+0j)
+    """
+    parser = CircuitParser(text, filename)
+    circuit, diagnostics = parser.run()
+    circuit.warnings = [d for d in diagnostics if d.severity == "warning"]
+    if not strict:
+        return circuit, diagnostics
+    if any(d.severity == "error" for d in diagnostics):
+        raise CircuitSyntaxError(sorted(diagnostics, key=_order))
+    return circuit
+
+
+def _order(d: Diagnostic):
+    return (d.line is not None, d.line or 0, d.column or 0)

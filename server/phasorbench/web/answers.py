@@ -1,0 +1,101 @@
+"""The jobs behind each API route: plain functions of text in, JSON-ready dict out.
+
+They run in worker threads (see ``api.run_job``), call the core once, and add the
+page's ``display`` strings, all made by ``formatting.py``, so the browser never
+formats a number itself. Input problems raise ``CircuitError``.
+"""
+
+from __future__ import annotations
+
+from .. import workflow
+from ..errors import CircuitError, Diagnostic
+from .display import solve_display
+from .limits import check_size
+from .settings import Settings
+
+#: The name circuit texts from the page carry in diagnostics.
+PAGE_FILENAME = "<workbench>"
+
+
+def diagnostic_item(d: Diagnostic) -> dict:
+    """The contract's error item, plus the caret width and severity the editor marks."""
+    item = d.as_dict()
+    item["length"] = d.length
+    item["severity"] = d.severity
+    return item
+
+
+def diagnostics_answer(diagnostics) -> dict:
+    """``{"errors": [...], "warnings": [...]}``, errors in line order (no line last)."""
+    def order(d: Diagnostic):
+        return (d.line is None, d.line or 0, d.column or 0)
+    ordered = sorted(diagnostics, key=order)
+    return {"errors": [diagnostic_item(d) for d in ordered if d.severity != "warning"],
+            "warnings": [diagnostic_item(d) for d in ordered if d.severity == "warning"]}
+
+
+def check_answer(text: str, settings: Settings) -> dict:
+    """Every error and warning of ``text``; never raises for input problems."""
+    try:
+        check_size(text, settings.max_elements)
+    except CircuitError as exc:
+        return diagnostics_answer(exc.diagnostics)
+    return diagnostics_answer(workflow.check_text(text, PAGE_FILENAME))
+
+
+def _solved(text: str, settings: Settings) -> dict:
+    check_size(text, settings.max_elements)
+    return workflow.solve_text(text, PAGE_FILENAME)
+
+
+def solve_answer(text: str, settings: Settings) -> dict:
+    """The contract dict of ``text`` with a ``display`` field of formatted strings."""
+    result = _solved(text, settings)
+    answer = dict(result)
+    answer["display"] = solve_display(result)
+    return answer
+
+
+def _picked(result: dict, names: list[str], settings: Settings) -> list[str]:
+    """``names`` without repeats, each checked to be an element of ``result``."""
+    picked = list(dict.fromkeys(names))
+    problems = []
+    if not picked:
+        problems.append(Diagnostic("no element was named", "pick at least one element"))
+    if len(picked) > settings.max_view_elements:
+        problems.append(Diagnostic(
+            f"{len(picked)} elements were asked for, more than the limit of "
+            f"{settings.max_view_elements} per picture", "pick fewer elements"))
+    for name in picked:
+        if name not in result["elements"]:
+            problems.append(Diagnostic(f"the circuit has no element named '{name}'",
+                                       "use a name from the branch table"))
+    if problems:
+        raise CircuitError(problems)
+    return picked
+
+
+def waveforms_answer(text: str, names: list[str], settings: Settings) -> dict:
+    """Samples of v(t), i(t), p(t) and their SVG for each named element.
+
+    ``{"elements": {name: {"samples": {...}, "svg": "<svg ...>"}}, "order": [names]}``
+    """
+    from ..drawing.waveforms import waveform_svg
+    from ..waveforms import sample_element
+
+    result = _solved(text, settings)
+    picked = _picked(result, names, settings)
+    out = {}
+    for name in picked:
+        samples = sample_element(result, name)
+        out[name] = {"samples": samples, "svg": waveform_svg(samples)}
+    return {"elements": out, "order": picked}
+
+
+def phasors_answer(text: str, names: list[str], settings: Settings) -> dict:
+    """The phasor diagram SVG of the named elements: ``{"svg": "...", "elements": [...]}``."""
+    from ..drawing.phasors import phasor_diagram_svg
+
+    result = _solved(text, settings)
+    picked = _picked(result, names, settings)
+    return {"svg": phasor_diagram_svg(result, picked), "elements": picked}

@@ -1,0 +1,101 @@
+"""The web application: one ``create_app()`` that lists every route the server has.
+
+Read this file to know the whole surface of the server. Handlers live in ``pages.py``
+(HTML) and ``api.py`` (JSON); the guards in ``guards.py`` run before any of them.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import logging
+from concurrent.futures import ThreadPoolExecutor
+
+from fastapi import FastAPI, Request
+from fastapi.exceptions import RequestValidationError
+from fastapi.responses import HTMLResponse
+from fastapi.routing import APIRoute
+from fastapi.templating import Jinja2Templates
+from starlette.routing import Mount
+from starlette.staticfiles import StaticFiles
+
+from .. import __version__
+from . import api, pages
+from .guards import HostOriginGuard
+from .jsonsafe import StrictJSONResponse
+from .settings import Settings
+
+log = logging.getLogger("phasorbench.web")
+
+
+def _routes(settings: Settings) -> list:
+    """Every route of the server, in one list."""
+    def page(path, endpoint):
+        return APIRoute(path, endpoint, methods=["GET"], response_class=HTMLResponse,
+                        include_in_schema=False)
+
+    def post(path, endpoint, summary):
+        return APIRoute(path, endpoint, methods=["POST"], summary=summary,
+                        response_class=StrictJSONResponse)
+
+    return [
+        page("/", pages.workbench),
+        page("/docs", pages.api_docs),
+        post("/api/check", api.check, "Check a circuit (errors and warnings, no solve)"),
+        post("/api/solve", api.solve, "Solve a circuit (results contract + display text)"),
+        post("/api/waveforms", api.waveforms, "Sample v(t), i(t), p(t) of elements, with SVG"),
+        post("/api/phasors", api.phasors, "Phasor diagram SVG of elements"),
+        # POST /api/sheet (the exported solved sheet) goes here, next to the other posts.
+        APIRoute("/api/samples", api.samples, methods=["GET"], summary="List the sample circuits",
+                 response_class=StrictJSONResponse),
+        Mount("/static", StaticFiles(directory=settings.static_dir), name="static"),
+    ]
+
+
+async def _invalid_request(request: Request, exc: RequestValidationError):
+    """A malformed body gets the same error shape as a malformed circuit."""
+    errors = []
+    for err in exc.errors():
+        where = ".".join(str(p) for p in err.get("loc", ()) if p != "body")
+        message = f"request body: {err.get('msg', 'invalid')}" + (f" ({where})" if where else "")
+        errors.append(api.error_item(
+            message, 'send JSON like {"netlist": "frequency 50 Hz\\n..."}'))
+    return StrictJSONResponse({"errors": errors, "warnings": []}, status_code=422)
+
+
+async def _internal_error(request: Request, exc: Exception):
+    log.error("unhandled error on %s %s", request.method, request.url.path, exc_info=exc)
+    return api.error_response(500, api.INTERNAL_ERROR)
+
+
+def create_app(settings: Settings | None = None) -> FastAPI:
+    """Build the server: routes, guards, templates, static files, the solve pool.
+
+    A missing ``static/`` or ``templates/`` folder fails here, at start-up, not on the
+    first request.
+    """
+    settings = settings or Settings()
+    for folder in (settings.static_dir, settings.templates_dir):
+        if not folder.is_dir():
+            raise RuntimeError(f"phasorbench web: folder not found: {folder}")
+    pool = ThreadPoolExecutor(max_workers=settings.solve_workers,
+                              thread_name_prefix="phasorbench-solve")
+
+    @contextlib.asynccontextmanager
+    async def lifespan(app):
+        yield
+        pool.shutdown(wait=False, cancel_futures=True)
+
+    app = FastAPI(
+        title="phasorbench", version=__version__,
+        description="Local API of the phasorbench workbench: AC circuits in sinusoidal steady state.",
+        routes=_routes(settings), lifespan=lifespan,
+        docs_url=None, redoc_url=None,          # /docs is our own page: no CDN assets
+        default_response_class=StrictJSONResponse,
+        exception_handlers={RequestValidationError: _invalid_request,
+                            Exception: _internal_error},
+    )
+    app.state.settings = settings
+    app.state.solve_pool = pool
+    app.state.templates = Jinja2Templates(directory=str(settings.templates_dir))
+    app.add_middleware(HostOriginGuard, settings=settings)
+    return app

@@ -1,0 +1,46 @@
+"""Turn core results into strict JSON: no NaN, no infinity, no numpy types.
+
+The contract promises JSON that every parser reads; ``json.dumps`` would happily
+write ``NaN`` (not JSON at all), so each float is checked once here.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+from fastapi.responses import JSONResponse
+
+
+def jsonable(value):
+    """A copy of ``value`` made of dict, list, str, int, float (finite), bool, None.
+
+    Non-finite floats become None; numpy scalars and arrays are unwrapped through
+    their ``item``/``tolist`` methods (the web layer never imports numpy).
+
+    >>> jsonable({"a": float("nan"), "b": (1, 2.5)})
+    {'a': None, 'b': [1, 2.5]}
+    """
+    if value is None or isinstance(value, (str, bool, int)):
+        return value
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {str(k): jsonable(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [jsonable(v) for v in value]
+    if isinstance(value, complex):
+        return {"re": jsonable(value.real), "im": jsonable(value.imag)}
+    if hasattr(value, "tolist"):           # numpy arrays and numpy scalars
+        return jsonable(value.tolist())
+    if hasattr(value, "item"):
+        return jsonable(value.item())
+    raise TypeError(f"cannot send {type(value).__name__} as JSON")
+
+
+class StrictJSONResponse(JSONResponse):
+    """A JSON response that cleans its content first and refuses NaN as a last resort."""
+
+    def render(self, content) -> bytes:
+        return json.dumps(jsonable(content), ensure_ascii=False, allow_nan=False,
+                          separators=(",", ":")).encode("utf-8")

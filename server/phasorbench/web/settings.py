@@ -1,0 +1,91 @@
+"""Settings of the local server, declared once with their defaults and reasons.
+
+Every limit the server enforces is a named constant here, so the README, the
+``serve`` command's ``--help`` and the tests all read the same numbers.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field
+from pathlib import Path
+
+#: Loopback only by default: the workbench is a personal tool, not a shared service.
+DEFAULT_HOST = "127.0.0.1"
+DEFAULT_PORT = 8000
+#: 2 MB holds a circuit of tens of thousands of lines; anything larger is a mistake
+#: (a pasted binary, a runaway script) and is refused before it is read in full.
+MAX_BODY_BYTES = 2 * 1024 * 1024
+#: The page draws one table row per element; beyond a few thousand rows the page is
+#: no longer readable and a solve takes long enough to look like a hang.
+MAX_ELEMENTS = 5000
+#: Elements whose waveforms or phasors one request may ask for (one SVG each).
+MAX_VIEW_ELEMENTS = 24
+#: Solves run in worker threads so one heavy circuit never freezes the event loop;
+#: two cores here, so a few workers keep the page responsive without thrashing.
+SOLVE_WORKERS = 4
+#: Names under which the server is always reachable from this machine itself.
+LOOPBACK_NAMES = ("127.0.0.1", "localhost", "::1")
+#: Bind addresses that mean "every interface" (then the Host check needs names given
+#: explicitly with ``allowed_hosts``).
+WILDCARD_HOSTS = ("0.0.0.0", "::", "")
+
+_REPO_ROOT = Path(__file__).resolve().parents[3]
+
+
+def _folder(env: str, default: Path) -> Path:
+    return Path(os.environ.get(env, str(default)))
+
+
+@dataclass(frozen=True)
+class Settings:
+    """What one server instance needs to know.
+
+    Parameters
+    ----------
+    host, port
+        Where the server listens; the Host guard accepts these plus the loopback
+        names. ``port`` 0 or None accepts any port in a Host header (tests with an
+        ephemeral port).
+    max_body_bytes
+        Largest request body read; a larger one is answered 413.
+    max_elements
+        Largest circuit solved; a larger one is answered 422 with a message.
+    allowed_hosts
+        Extra host names accepted in the Host header (for example a machine name
+        when serving on every interface).
+    initial_sample
+        Name of the sample the page loads when the browser has no saved circuit;
+        None means the first sample.
+    """
+
+    host: str = DEFAULT_HOST
+    port: int | None = DEFAULT_PORT
+    max_body_bytes: int = MAX_BODY_BYTES
+    max_elements: int = MAX_ELEMENTS
+    max_view_elements: int = MAX_VIEW_ELEMENTS
+    solve_workers: int = SOLVE_WORKERS
+    allowed_hosts: tuple[str, ...] = ()
+    initial_sample: str | None = None
+    static_dir: Path = field(default_factory=lambda: _folder("PHASORBENCH_STATIC", _REPO_ROOT / "static"))
+    templates_dir: Path = field(
+        default_factory=lambda: _folder("PHASORBENCH_TEMPLATES", _REPO_ROOT / "templates"))
+    samples_dir: Path = field(default_factory=lambda: _folder("PHASORBENCH_SAMPLES", _REPO_ROOT / "samples"))
+
+    def host_names(self) -> frozenset[str]:
+        """Every host name the Host guard accepts, lower-case, IPv6 without brackets."""
+        names = set(LOOPBACK_NAMES) | {h.lower().strip("[]") for h in self.allowed_hosts}
+        if self.host not in WILDCARD_HOSTS:
+            names.add(self.host.lower().strip("[]"))
+        return frozenset(names)
+
+
+#: One line of help per setting, for ``serve --help`` and the README.
+SETTINGS_HELP = {
+    "host": f"address to listen on (default {DEFAULT_HOST}, loopback only)",
+    "port": f"port to listen on (default {DEFAULT_PORT})",
+    "max_body_bytes": f"largest request body accepted, in bytes (default {MAX_BODY_BYTES}); larger gets 413",
+    "max_elements": f"largest circuit solved, in elements (default {MAX_ELEMENTS}); larger gets 422",
+    "max_view_elements": f"elements per waveform or phasor request (default {MAX_VIEW_ELEMENTS})",
+    "solve_workers": f"worker threads for solving (default {SOLVE_WORKERS})",
+}
