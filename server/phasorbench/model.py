@@ -91,6 +91,8 @@ class Circuit:
     groups: dict[str, Group] = field(default_factory=dict)
     values: dict[str, complex] = field(default_factory=dict)
     warnings: list = field(default_factory=list)      # Diagnostics found while reading
+    #: Nodes held at 0 V besides ground: one per part with no conductive path to ground.
+    references: tuple[str, ...] = ()
     text: str = ""
     filename: str = "<circuit>"
 

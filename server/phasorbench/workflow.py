@@ -19,8 +19,8 @@ def read_circuit(text: str, filename: str = "<circuit>") -> Circuit:
     from .checks import check_structure
     from .language.parser import parse_circuit
 
-    circuit = parse_circuit(text, filename)
-    check_structure(circuit)
+    circuit, diagnostics = parse_circuit(text, filename, strict=False)
+    check_structure(circuit, diagnostics)
     return circuit
 
 

@@ -1,0 +1,304 @@
+"""Structure checks before solving: the errors a user can fix by reading the drawing.
+
+A singular matrix tells a user nothing; these checks name the elements and nodes
+involved instead: references to missing elements or nodes, couplings out of range,
+loops of ideal voltage-type branches, nodes reached only through current-type
+branches, nodes touched by a single terminal (usually a misspelling), and parts of the
+circuit with no conductive path to ground (each gets its own reference node).
+"""
+
+from __future__ import annotations
+
+import math
+from collections import defaultdict, deque
+
+import numpy as np
+from scipy.sparse import coo_matrix
+from scipy.sparse.csgraph import connected_components
+
+from .errors import CircuitStructureError, CircuitSyntaxError, Diagnostic
+from .model import CURRENT_KINDS, GROUND, PASSIVE_KINDS, VOLTAGE_KINDS, Circuit, Element
+
+_SOURCE_WORDS = {"voltage": "voltage source", "vcvs": "vcvs", "ccvs": "ccvs",
+                 "current": "current source", "vccs": "vccs", "cccs": "cccs",
+                 "transformer": "transformer", "resistor": "0-ohm resistor",
+                 "impedance": "zero impedance"}
+
+
+def is_short(element: Element) -> bool:
+    """A passive with zero impedance: it fixes a voltage (0 V) like a source does."""
+    return element.kind in ("resistor", "impedance") and element.value == 0
+
+
+def is_open(element: Element) -> bool:
+    return element.kind == "admittance" and element.value == 0
+
+
+def check_references(circuit: Circuit) -> list[Diagnostic]:
+    """Names and values that must exist or lie in range; safe on a partly read circuit."""
+    found: list[Diagnostic] = []
+    nodes = set(circuit.nodes())
+    elements = circuit.elements
+    for element in elements.values():
+        if element.sense_element is not None:
+            target = elements.get(element.sense_element)
+            if target is None:
+                found.append(Diagnostic(
+                    f"{element.name} senses '{element.sense_element}', which is not an element",
+                    _close_hint(element.sense_element, elements), element.line, 1,
+                    len(element.name)))
+            elif target.kind == "transformer":
+                found.append(Diagnostic(
+                    f"{element.name} senses transformer {target.name}: only two-terminal "
+                    "elements can be sensed", "sense an element in series with a winding",
+                    element.line, 1, len(element.name)))
+        if element.sense_nodes is not None:
+            for node in element.sense_nodes:
+                if node not in nodes:
+                    found.append(Diagnostic(
+                        f"{element.name} senses node '{node}', which no element touches",
+                        "check the spelling of the sensed nodes", element.line, 1,
+                        len(element.name)))
+    for coupling in circuit.couplings.values():
+        found.extend(_check_coupling(circuit, coupling))
+    return found
+
+
+def _check_coupling(circuit: Circuit, coupling) -> list[Diagnostic]:
+    found = []
+    where = dict(line=coupling.line, column=1, length=len(coupling.name))
+    inductors = []
+    for name in coupling.inductors:
+        element = circuit.elements.get(name)
+        if element is None or element.kind != "inductor":
+            what = "is not an element" if element is None else f"is a {element.kind}"
+            found.append(Diagnostic(f"coupling {coupling.name}: '{name}' {what}",
+                                    "a coupling joins two inductors, e.g. K1: coupling L1 L2 "
+                                    "k 0.95", **where))
+        else:
+            inductors.append(element)
+    if found:
+        return found
+    if coupling.inductors[0] == coupling.inductors[1]:
+        return [Diagnostic(f"coupling {coupling.name} joins {coupling.inductors[0]} to itself",
+                           "name two different inductors", **where)]
+    l1, l2 = (e.value.real for e in inductors)
+    if coupling.k is None:
+        coupling.k = coupling.m / math.sqrt(l1 * l2)
+    else:
+        coupling.m = coupling.k * math.sqrt(l1 * l2)
+    if not -1.0 - 1e-12 <= coupling.k <= 1.0 + 1e-12:
+        given = f"k = {coupling.k:.6g}" + ("" if coupling.m is None else
+                                           f" (M = {coupling.m:.6g} H)")
+        found.append(Diagnostic(f"coupling {coupling.name}: {given} is outside [-1, 1]",
+                                "|k| cannot exceed 1: M must not exceed sqrt(L1*L2)", **where))
+    return found
+
+
+def _close_hint(name: str, elements) -> str:
+    import difflib
+    close = difflib.get_close_matches(name, list(elements), n=1)
+    return f"did you mean '{close[0]}'?" if close else "name an element of the circuit"
+
+
+class _Forest:
+    """Union-find that also remembers the branches it joined, to name a loop's members."""
+
+    def __init__(self):
+        self.parent: dict[str, str] = {}
+        self.adjacent: dict[str, list[tuple[str, str]]] = defaultdict(list)
+
+    def find(self, node: str) -> str:
+        parent = self.parent
+        parent.setdefault(node, node)
+        root = node
+        while parent[root] != root:
+            root = parent[root]
+        while parent[node] != root:
+            parent[node], node = root, parent[node]
+        return root
+
+    def joined(self, a: str, b: str) -> bool:
+        return self.find(a) == self.find(b)
+
+    def join(self, a: str, b: str, label: str) -> None:
+        self.parent[self.find(a)] = self.find(b)
+        self.adjacent[a].append((b, label))
+        self.adjacent[b].append((a, label))
+
+    def path(self, a: str, b: str) -> list[str]:
+        """Labels of the branches on the forest path from a to b."""
+        previous: dict[str, tuple[str, str] | None] = {a: None}
+        queue = deque([a])
+        while queue:
+            node = queue.popleft()
+            if node == b:
+                break
+            for nxt, label in self.adjacent[node]:
+                if nxt not in previous:
+                    previous[nxt] = (node, label)
+                    queue.append(nxt)
+        labels = []
+        node = b
+        while previous.get(node):
+            node, label = previous[node]
+            labels.append(label)
+        return labels
+
+
+def _voltage_loops(circuit: Circuit) -> list[Diagnostic]:
+    found = []
+    forest = _Forest()
+    for element in circuit.elements.values():
+        if element.kind in VOLTAGE_KINDS or is_short(element):
+            p, n = element.nodes
+            if forest.joined(p, n):
+                members = forest.path(p, n)[::-1] + [element.name]
+                kinds = {circuit.elements[m].kind for m in members if m in circuit.elements}
+                what = ("voltage sources" if kinds <= {"voltage"} else
+                        "ideal voltage-type branches (voltage, vcvs, ccvs, zero impedance)")
+                found.append(Diagnostic(
+                    f"{what} {', '.join(members)} form a loop of ideal sources: the circuit "
+                    "has no unique solution", "add a series impedance (a source's internal "
+                    "impedance, a line) in the loop, or remove one of them",
+                    element.line, 1, len(element.name)))
+            else:
+                forest.join(p, n, element.name)
+    for element in circuit.elements.values():
+        if element.kind != "transformer":
+            continue
+        p1, n1, p2, n2 = element.nodes
+        if not forest.joined(p1, n1):
+            forest.join(p1, n1, element.name)
+        elif not forest.joined(p2, n2):
+            forest.join(p2, n2, element.name)
+        else:
+            fixed = sorted(set(forest.path(p1, n1) + forest.path(p2, n2)))
+            found.append(Diagnostic(
+                f"transformer {element.name} has both windings held by ideal sources "
+                f"({', '.join(fixed)}): the circuit has no unique solution",
+                "keep a fixed voltage on one winding only, or add a series impedance",
+                element.line, 1, len(element.name)))
+    return found
+
+
+def _components(index: dict[str, int], pairs: list[tuple[str, str]]) -> np.ndarray:
+    """Connected-component label of every node (scipy's csgraph keeps this fast on big meshes)."""
+    size = len(index)
+    if pairs:
+        rows = np.fromiter((index[a] for a, _ in pairs), dtype=np.int64, count=len(pairs))
+        cols = np.fromiter((index[b] for _, b in pairs), dtype=np.int64, count=len(pairs))
+    else:
+        rows = cols = np.zeros(0, dtype=np.int64)
+    graph = coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(size, size))
+    return connected_components(graph, directed=False)[1]
+
+
+def _winding_pairs(element: Element) -> list[tuple[str, str]]:
+    if element.kind == "transformer":
+        return [element.nodes[0:2], element.nodes[2:4]]
+    return [element.nodes]
+
+
+def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]:
+    """Islands, source loops, current-only cuts and dangling nodes.
+
+    Returns the diagnostics and the extra reference nodes (one per isolated part).
+    """
+    found = _voltage_loops(circuit)
+    nodes = circuit.nodes()
+    index = {node: i for i, node in enumerate(nodes)}
+    elements = circuit.elements.values()
+    all_pairs = [pair for e in elements for pair in _winding_pairs(e)]
+    island = _components(index, all_pairs)
+
+    references: list[str] = []
+    seen_islands = {island[0]}
+    members: dict[int, list[str]] = defaultdict(list)
+    for node in nodes:
+        members[island[index[node]]].append(node)
+    for node in nodes:
+        label = island[index[node]]
+        if label in seen_islands:
+            continue
+        seen_islands.add(label)
+        references.append(node)
+        part = members[label]
+        shown = ", ".join(part[:6]) + (", …" if len(part) > 6 else "")
+        found.append(Diagnostic(
+            f"nodes {shown} have no conductive path to ground: node '{node}' is taken as "
+            "their reference", "currents and powers there are exact; node voltages there "
+            "are relative to that node (connect the part to ground to fix it)",
+            _first_line(circuit, node), 1, 1, "warning"))
+
+    conductive = [pair for e in elements if e.kind not in CURRENT_KINDS and not is_open(e)
+                  for pair in _winding_pairs(e)]
+    cut = _components(index, conductive)
+    anchored = {cut[index[GROUND]]} | {cut[index[r]] for r in references}
+    stranded: dict[int, list[str]] = defaultdict(list)
+    for node in nodes:
+        if cut[index[node]] not in anchored:
+            stranded[cut[index[node]]].append(node)
+    stuck_nodes = set()
+    for group in stranded.values():
+        stuck_nodes.update(group)
+        group_set = set(group)
+        feeders = [e.name for e in elements if e.kind in CURRENT_KINDS or is_open(e)
+                   if group_set & set(e.nodes)]
+        line = min((circuit.elements[f].line or 0 for f in feeders), default=None)
+        found.append(Diagnostic(
+            f"node{'s' if len(group) > 1 else ''} {', '.join(group[:6])} "
+            f"{'are' if len(group) > 1 else 'is'} reached only through current-type "
+            f"branches ({', '.join(feeders[:6]) or 'none'}): their voltage is not determined",
+            "add a path that fixes the voltage there (an impedance to ground, say), or check "
+            "the connections", line or None, 1 if line else None, 1))
+
+    found.extend(_dangling(circuit, stuck_nodes))
+    return found, tuple(references)
+
+
+def _first_line(circuit: Circuit, node: str) -> int | None:
+    for element in circuit.elements.values():
+        if node in element.nodes:
+            return element.line
+    return None
+
+
+def _dangling(circuit: Circuit, skip: set[str]) -> list[Diagnostic]:
+    count: dict[str, int] = defaultdict(int)
+    owner: dict[str, Element] = {}
+    for element in circuit.elements.values():
+        for node in element.nodes:
+            count[node] += 1
+            owner[node] = element
+    found = []
+    for node, n in count.items():
+        if n == 1 and node != GROUND and node not in skip:
+            element = owner[node]
+            found.append(Diagnostic(
+                f"node '{node}' is reached by one terminal only ({element.name}): no current "
+                f"can flow in {element.name}; a misspelt node?",
+                "check the node's spelling, or connect it", element.line, 1,
+                len(element.name), "warning"))
+    return found
+
+
+def check_structure(circuit: Circuit, earlier: list[Diagnostic] | None = None) -> None:
+    """Run every check; raise ``CircuitStructureError`` with all diagnostics on any error.
+
+    ``earlier`` holds diagnostics found while reading; the topology checks run only when
+    there were no errors before them (a half-read circuit would give false alarms).
+    On success, warnings are added to ``circuit.warnings`` and ``circuit.references`` is set.
+    """
+    diagnostics = list(earlier or [])
+    diagnostics.extend(check_references(circuit))
+    if not any(d.severity == "error" for d in diagnostics):
+        topology, references = check_topology(circuit)
+        diagnostics.extend(topology)
+        circuit.references = references
+    if any(d.severity == "error" for d in diagnostics):
+        unread = any(d.severity == "error" for d in earlier or [])
+        error_class = CircuitSyntaxError if unread else CircuitStructureError
+        raise error_class(sorted(
+            diagnostics, key=lambda d: (d.line is not None, d.line or 0, d.column or 0)))
+    circuit.warnings = [d for d in diagnostics if d.severity == "warning"]

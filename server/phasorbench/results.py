@@ -1,0 +1,192 @@
+"""From solved phasors to the contract dict (results-contract.md): the one shape every
+shell reads — the command line's JSON, the web API, the page and the sheet.
+
+Complex power into each element is ``V·I*`` for RMS phasors and ``½·V·I*`` for peak
+phasors (passive sign convention), computed for all elements at once. The power
+balance (Tellegen: the sum over all elements is zero) is in every result, with its
+residual relative to the total apparent power so a reader can judge it.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .model import CONTROLLED_KINDS, SOURCE_KINDS
+from .solver import Solution
+
+#: |Q| at or below this fraction of |S| counts as "unity" power factor.
+UNITY_Q_FRACTION = 1e-9
+#: |Σ S| at or below this fraction of Σ|S| is a passed power-balance check.
+BALANCE_TOLERANCE = 1e-9
+
+_A = complex(-0.5, math.sqrt(3) / 2)             # Fortescue's operator a = 1∠120°
+_FORTESCUE = np.array([[1, 1, 1], [1, _A, _A * _A], [1, _A * _A, _A]]) / 3
+
+
+def _degrees(values: np.ndarray) -> np.ndarray:
+    deg = np.degrees(np.angle(values))
+    deg[deg <= -180.0] += 360.0                    # the contract's range is (-180, 180]
+    return deg
+
+
+def phasor_dicts(values: np.ndarray) -> list[dict]:
+    """``{"re", "im", "mag", "deg"}`` for each complex value (plain floats, no NaN)."""
+    values = np.asarray(values, dtype=complex)
+    return [{"re": re, "im": im, "mag": mag, "deg": deg} for re, im, mag, deg in
+            zip(values.real.tolist(), values.imag.tolist(), np.abs(values).tolist(),
+                _degrees(values).tolist())]
+
+
+def phasor_dict(value: complex) -> dict:
+    return phasor_dicts(np.array([value]))[0]
+
+
+def power_factor(p: float, q: float, s: float, source: bool) -> tuple[float, str]:
+    """The contract's ``pf`` and ``pf_sense`` for one element or group."""
+    pf = abs(p) / s if s > 0 else 1.0
+    if s == 0 or abs(q) <= UNITY_Q_FRACTION * s:
+        return min(pf, 1.0), "unity"
+    takes_q = q > 0
+    if source:       # a supply quotes the sense of the load it feeds
+        return min(pf, 1.0), "leading" if takes_q else "lagging"
+    return min(pf, 1.0), "lagging" if takes_q else "leading"
+
+
+def contract(solution: Solution) -> dict:
+    """The contract dict of a solved circuit.
+
+    >>> from phasorbench.workflow import read_circuit
+    >>> from phasorbench.solver import solve
+    >>> r = contract(solve(read_circuit("frequency 50 Hz\\nV1: voltage a -> 0 10\\nR1: resistor a -> 0 5")))
+    >>> r["elements"]["V1"]["p_w"], r["elements"]["R1"]["pf_sense"]
+    (-20.0, 'unity')
+    """
+    circuit = solution.circuit
+    half = 0.5 if circuit.amplitudes == "peak" else 1.0
+    elements = [circuit.elements[name] for name in solution.names]
+    v, i = solution.voltage, solution.current
+    power = half * v * np.conj(i)
+    for k, e in enumerate(elements):
+        if e.kind == "transformer":
+            v2, i2 = solution.secondary[e.name]
+            power[k] += half * v2 * np.conj(i2)
+    p_list, q_list = power.real.tolist(), power.imag.tolist()
+    s_list = np.abs(power).tolist()
+    z = _impedances(elements, v, i, circuit)
+    z_dicts = phasor_dicts(np.nan_to_num(z))
+    z_ok = np.isfinite(z).tolist()
+    v_dicts, i_dicts = phasor_dicts(v), phasor_dicts(i)
+
+    out_elements: dict[str, dict] = {}
+    for k, e in enumerate(elements):
+        kind = e.kind
+        passive = kind not in SOURCE_KINDS and kind not in CONTROLLED_KINDS
+        pf, sense = power_factor(p_list[k], q_list[k], s_list[k], not passive)
+        entry = {
+            "kind": kind, "from": e.nodes[0], "to": e.nodes[1],
+            "voltage": v_dicts[k], "current": i_dicts[k],
+            "impedance": z_dicts[k] if (passive and kind != "transformer" and z_ok[k])
+            else None,
+            "p_w": p_list[k], "q_var": q_list[k], "s_va": s_list[k],
+            "pf": pf, "pf_sense": sense, "line": e.line,
+        }
+        if kind == "transformer":
+            v2, i2 = solution.secondary[e.name]
+            entry["secondary"] = {"from": e.nodes[2], "to": e.nodes[3],
+                                  "voltage": phasor_dict(v2), "current": phasor_dict(i2)}
+            entry["ratio"] = e.value.real
+        if e.group is not None:
+            entry["group"] = e.group
+        out_elements[e.name] = entry
+
+    total = complex(power.sum()) if len(power) else 0j
+    apparent = float(np.abs(power).sum())
+    relative = abs(total) / apparent if apparent > 0 else 0.0
+    node_names = list(solution.node_voltages)
+    node_dicts = phasor_dicts(np.array(list(solution.node_voltages.values()), dtype=complex))
+    result = {
+        "title": circuit.title,
+        "frequency_hz": circuit.frequency,
+        "amplitudes": circuit.amplitudes,
+        "nodes": dict(zip(node_names, node_dicts)),
+        "elements": out_elements,
+        "balance": {"p_w": total.real, "q_var": total.imag, "relative": relative,
+                    "tolerance": BALANCE_TOLERANCE, "ok": relative <= BALANCE_TOLERANCE},
+        "references": list(circuit.references),
+        "condition_estimate": (solution.condition if solution.condition is not None and
+                               math.isfinite(solution.condition) else None),
+        "warnings": [d.as_dict() for d in solution.warnings],
+    }
+    if circuit.couplings:
+        result["couplings"] = {
+            c.name: {"inductors": list(c.inductors), "k": c.k, "m_h": c.m, "line": c.line}
+            for c in circuit.couplings.values()}
+    if circuit.groups:
+        result["groups"] = {name: _group(group, result, solution)
+                            for name, group in circuit.groups.items()}
+    return result
+
+
+def _impedances(elements, v: np.ndarray, i: np.ndarray, circuit) -> np.ndarray:
+    """The element's own impedance: exact from its value, V/I where coupling changes it."""
+    omega = 2 * math.pi * circuit.frequency
+    coupled = {name for c in circuit.couplings.values() for name in c.inductors}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        z = np.where(i != 0, v / np.where(i != 0, i, 1), np.nan)
+    for k, e in enumerate(elements):
+        if e.name in coupled:
+            continue
+        if e.kind in ("resistor", "impedance"):
+            z[k] = e.value
+        elif e.kind == "capacitor":
+            z[k] = 1 / (1j * omega * e.value)
+        elif e.kind == "inductor":
+            z[k] = 1j * omega * e.value
+        elif e.kind == "admittance":
+            z[k] = 1 / e.value if e.value != 0 else np.nan
+    return z
+
+
+def sequence_components(phases) -> tuple[complex, complex, complex]:
+    """Fortescue's zero, positive and negative sequence of (a, b, c), phase a reference."""
+    zero, positive, negative = _FORTESCUE @ np.asarray(phases, dtype=complex)
+    return complex(zero), complex(positive), complex(negative)
+
+
+def _group(group, result: dict, solution: Solution) -> dict:
+    members = [result["elements"][name] for name in group.elements]
+    p = sum(m["p_w"] for m in members)
+    q = sum(m["q_var"] for m in members)
+    s = math.hypot(p, q)
+    pf, sense = power_factor(p, q, s, group.kind == "voltage3")
+    index = {name: k for k, name in enumerate(solution.names)}
+    v = np.array([solution.voltage[index[n]] for n in group.elements])
+    i = np.array([solution.current[index[n]] for n in group.elements])
+    nodes = solution.node_voltages
+    a, b, c = (nodes[x] for x in group.lines)
+    line_voltages = np.array([a - b, b - c, c - a])
+    seq_v = sequence_components(v)
+    seq_i = sequence_components(i)
+    _, v1, v2 = sequence_components(line_voltages)
+    out = {
+        "kind": group.kind, "connection": group.connection, "lines": list(group.lines),
+        "elements": list(group.elements),
+        "p_w": p, "q_var": q, "s_va": s, "pf": pf, "pf_sense": sense,
+        "sequence_voltage": dict(zip(("zero", "positive", "negative"),
+                                     phasor_dicts(np.array(seq_v)))),
+        "sequence_current": dict(zip(("zero", "positive", "negative"),
+                                     phasor_dicts(np.array(seq_i)))),
+        "line_voltage": dict(zip(("ab", "bc", "ca"), phasor_dicts(line_voltages))),
+        "voltage_unbalance": abs(v2) / abs(v1) if abs(v1) > 0 else None,
+        "line": group.line,
+    }
+    if group.connection == "wye":
+        out["star"] = group.neutral if group.neutral is not None else f"{group.name}.n"
+        out["neutral_current"] = phasor_dict(complex(i.sum()))
+        out["line_current"] = dict(zip("abc", phasor_dicts(i)))
+    else:
+        line_currents = np.array([i[0] - i[2], i[1] - i[0], i[2] - i[1]])
+        out["line_current"] = dict(zip("abc", phasor_dicts(line_currents)))
+    return out
