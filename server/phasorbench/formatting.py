@@ -237,9 +237,12 @@ def rect(ph, unit: str = "", digits: int = 4, floor: float | None = None) -> str
         mantissa, exp3 = mantissa / 1000.0, 0
     if exp3 not in _PREFIXES:
         exp3 = 0  # out of prefix range: both parts in e-notation
-        a, b, prefix = eng(re, "", digits), eng(abs(im), "", digits), ""
+        a, b, prefix = plain(re, digits), plain(abs(im), digits), ""
     else:
-        decimals = _decimals_for(mantissa, digits) if mantissa >= 1 else digits - 1 - math.floor(math.log10(mantissa))
+        if mantissa >= 1:
+            decimals = _decimals_for(mantissa, digits)
+        else:
+            decimals = digits - 1 - math.floor(math.log10(mantissa))
         scale = 10.0**exp3
         a = _trim(f"{re / scale:.{decimals}f}")
         b = _trim(f"{abs(im) / scale:.{decimals}f}")
@@ -277,7 +280,8 @@ def _phasor_values(ph, prefix: str) -> dict:
     if z is None:
         return {f"{prefix}_{k}": None for k in ("mag", "deg", "re", "im")}
     deg = ph["deg"] if isinstance(ph, dict) and "deg" in ph else math.degrees(cmath.phase(z))
-    return {f"{prefix}_mag": abs(z), f"{prefix}_deg": deg, f"{prefix}_re": z.real, f"{prefix}_im": z.imag}
+    return {f"{prefix}_mag": abs(z), f"{prefix}_deg": deg,
+            f"{prefix}_re": z.real, f"{prefix}_im": z.imag}
 
 
 def element_rows(result: dict) -> list[dict]:

@@ -76,8 +76,10 @@ def returned_energy(p_w: float, s_va: float, frequency_hz: float) -> float:
     """
     omega = 2.0 * math.pi * float(frequency_hz)
     p, s = float(p_w), abs(float(s_va))
-    if s == 0.0:
-        return max(0.0, -p) * 2.0 * math.pi / omega
+    if p >= s:
+        return 0.0  # never negative (exact, where the formula leaves sin(π) ≈ 1e-16)
+    if p <= -s:
+        return -p * 2.0 * math.pi / omega
     alpha = math.acos(min(1.0, max(-1.0, -p / s)))
     return max(0.0, (2.0 * s * math.sin(alpha) - 2.0 * p * (math.pi - alpha)) / omega)
 

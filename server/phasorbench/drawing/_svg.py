@@ -84,6 +84,9 @@ def text(x: float, y: float, words: str, halo: bool = True, **kw) -> str:
         kw.setdefault("paint_order", "stroke")
         kw.setdefault("stroke_linejoin", "round")
     kw.setdefault("fill", INK)
+    if kw.get("font_size") == 11:
+        # Also as a class, so the scoped style below can hold the size against page CSS.
+        kw["class_"] = f"{kw.get('class_', '')} pb-small".strip()
     return tag("text", escape(words), x=float(x), y=float(y), **kw)
 
 
@@ -98,9 +101,11 @@ def svg_root(css_class: str, width: int, height: int, label: str, body: list[str
     head = (f'<svg xmlns="http://www.w3.org/2000/svg" class="{css_class}" '
             f'{attrs(width=width, height=height, viewBox=f"0 0 {width} {height}")} '
             f'role="img" {attrs(aria_label=label, font_family=FONT_FAMILY, font_size=12)}>')
-    parts = [head, title(label)]
-    if style:
-        parts.append(f"<style>{style}</style>")
+    # Presentation attributes lose to any page rule such as ``text {font-size: 2em}``;
+    # this style, scoped to the picture's class, outranks such plain element rules.
+    scoped = (f"svg.{css_class} text{{font-family:{FONT_FAMILY};font-size:12px}}"
+              f"svg.{css_class} text.pb-small{{font-size:11px}}")
+    parts = [head, title(label), f"<style>{scoped}{style}</style>"]
     parts.append(tag("rect", x=0, y=0, width=width, height=height, fill="#ffffff"))
     parts.extend(body)
     parts.append("</svg>")

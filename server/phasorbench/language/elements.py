@@ -11,9 +11,10 @@ from __future__ import annotations
 import cmath
 import difflib
 import math
+import re
 
 from ..model import (CONTROLLED_KINDS, GROUND, Coupling, Element, Group)
-from .expressions import LanguageError, TokenStream
+from .expressions import LanguageError, TokenStream, decode_suffix
 from .values import expect_unit, parse_angle_radians, parse_value
 
 #: Canonical unit each kind's value takes (None: a plain number).
@@ -36,6 +37,14 @@ OPTION_KINDS = {
 }
 
 _ROOT3 = math.sqrt(3.0)
+
+#: The shape most lines of a big circuit have: NAME: KIND p -> n NUMBER[UNIT] [# comment].
+SIMPLE_ELEMENT = re.compile(
+    r"[ \t]*([A-Za-z][A-Za-z0-9_]*)[ \t]*:[ \t]*"
+    r"(resistor|capacitor|inductor|impedance|admittance|voltage|current)[ \t]+"
+    r"([A-Za-z0-9_.]+)[ \t]*->[ \t]*([A-Za-z0-9_.]+)[ \t]+"
+    r"(-?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)[ \t]*([A-Za-zµΩ]*)[ \t]*(?:#.*)?")
+_SIMPLE_FULL = SIMPLE_ELEMENT.fullmatch
 
 
 def _canonical_node(text: str) -> str:
@@ -97,6 +106,25 @@ class ElementReader:
         return q.value, span
 
     # -- the line ----------------------------------------------------------------------
+
+    def read_simple(self, line) -> bool:
+        """Read a line of the fast shape; False when the full reader must look at it."""
+        match = line.match
+        if _SIMPLE_FULL(line.text) is None:
+            return False
+        name, kind, p, n, number, suffix = match.groups()
+        value = float(number)
+        if suffix:
+            decoded = decode_suffix(suffix)
+            if decoded is None or decoded[2] or decoded[1] not in (None, KIND_UNITS[kind]):
+                return False
+            value *= decoded[0]
+        if not math.isfinite(value) or (kind in ("capacitor", "inductor") and value <= 0):
+            return False
+        p = GROUND if p == "0" or p.lower() == "gnd" else p
+        n = GROUND if n == "0" or n.lower() == "gnd" else n
+        self.circuit.elements[name] = Element(name, kind, (p, n), complex(value), line.number)
+        return True
 
     def read(self, line) -> None:
         self.line = line

@@ -33,7 +33,7 @@ UNIT_NAMES = {"ohm": "ohms (Ω)", "F": "farads (F)", "H": "henries (H)", "S": "s
               "var": "vars (var)", "VA": "volt-amperes (VA)", "deg": "degrees",
               "rad": "radians"}
 
-_IMAGINARY_WORD = re.compile(r"j((?:\d+\.?\d*|\.\d+)(?:[eE]\d+)?)(.*)")
+_IMAGINARY_WORD = re.compile(r"j((?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)(.*)")
 
 #: Expressions may nest this deep; deeper input is refused rather than overflowing the stack.
 MAX_DEPTH = 60

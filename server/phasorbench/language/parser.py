@@ -15,7 +15,7 @@ import re
 
 from ..errors import CircuitSyntaxError, Diagnostic
 from ..model import Circuit
-from .elements import ElementReader
+from .elements import SIMPLE_ELEMENT, ElementReader
 from .expressions import LanguageError, Quantity, TokenStream
 from .lexer import Token, tokenize
 from .values import expect_unit, parse_value
@@ -31,10 +31,16 @@ class _Poisoned(Exception):
 
 
 class _Line:
-    __slots__ = ("number", "text", "tokens", "kind")
+    __slots__ = ("number", "text", "tokens", "kind", "match")
 
     def __init__(self, number: int, text: str, tokens: list[Token], kind: str):
         self.number, self.text, self.tokens, self.kind = number, text, tokens, kind
+        self.match = None
+
+    def tokenize(self) -> None:
+        """Tokens for a line first taken by the fast path (only when it needs them)."""
+        if self.tokens is None:
+            self.tokens = tokenize(self.text)[0]
 
 
 class CircuitParser:
@@ -111,7 +117,18 @@ class CircuitParser:
 
     def classify(self) -> list[_Line]:
         lines = []
+        simple = SIMPLE_ELEMENT.match
         for number, raw in enumerate(self.text.splitlines(), start=1):
+            match = simple(raw)
+            if match is not None:
+                # The common shape 'NAME: KIND p -> n NUMBER[UNIT]' skips the tokenizer;
+                # ElementReader.read_simple falls back to the full reader on any doubt.
+                line = _Line(number, raw, None, "simple")
+                line.match = match
+                start, end = match.span(1)
+                if self.check_name(line, Token("word", match.group(1), start, end, False)):
+                    lines.append(line)
+                continue
             tokens, _comment = tokenize(raw)
             if not tokens:
                 continue
@@ -223,7 +240,8 @@ class CircuitParser:
                        "split the circuit or check that this is the right file")
             return self.empty(), self.diagnostics
         lines = self.classify()
-        self.element_names = {l.tokens[0].text for l in lines if l.kind == "element"}
+        self.element_names = {l.match.group(1) if l.kind == "simple" else l.tokens[0].text
+                              for l in lines if l.kind in ("element", "simple")}
         for line in lines:
             if line.kind == "directive":
                 self.directive(line)
@@ -236,6 +254,11 @@ class CircuitParser:
         circuit = self.empty()
         reader = ElementReader(self, circuit)
         for line in lines:
+            if line.kind == "simple":
+                if reader.read_simple(line):
+                    continue
+                line.tokenize()
+                line.kind = "element"
             if line.kind == "element":
                 try:
                     reader.read(line)

@@ -1,0 +1,88 @@
+"""The safety cautions: one text, shown by the page, the sheet and the README.
+
+A phasor result can look like a go-ahead for work on real equipment. These notes say
+what the numbers do not cover and where the real dangers of capacitor work lie. Keep
+the wording here only; every shell reads `CAUTIONS` and `SCOPE_NOTE`.
+
+Code clauses are quoted as they were checked for this project; standards change
+between editions, which is why the text asks the reader to check the edition in force.
+"""
+
+from __future__ import annotations
+
+__all__ = ["CAUTIONS", "SCOPE_NOTE", "cautions_text"]
+
+#: One sentence for the foot of every result: what the numbers are and are not.
+SCOPE_NOTE = (
+    "Results are linear, sinusoidal steady-state estimates from ideal component models. "
+    "They are not a protection, short-circuit or arc-flash study, and they say nothing "
+    "about switching transients. Local electrical codes and a licensed engineer or "
+    "electrician decide what is safe for a real installation."
+)
+
+#: (title, text) pairs, most dangerous first.
+CAUTIONS: tuple[tuple[str, str], ...] = (
+    (
+        "Stored charge can kill",
+        "A capacitor or capacitor bank stays charged after it is disconnected, up to the "
+        "peak of the voltage it last saw, and can deliver a lethal shock. Discharge "
+        "devices are required: NEC (NFPA 70) 460.6 asks that the residual voltage of "
+        "capacitors rated 600 V or less fall to 50 V or less within 1 minute of "
+        "disconnection (later editions extend this to 1000 V; check the edition in "
+        "force, and the standard that applies where you work). Do not rely on a "
+        "discharge resistor alone: before touching, verify zero voltage at every "
+        "terminal with a rated tester, then short the terminals together and to ground.",
+    ),
+    (
+        "Harmonic resonance",
+        "A shunt capacitor and the inductance of the supply form a parallel resonance. "
+        "Adding capacitance lowers its frequency, roughly at the harmonic order "
+        "h = √(short-circuit power / capacitor reactive power). Near a harmonic that "
+        "loads produce (5th, 7th, 11th, 13th) it can magnify harmonic voltages and "
+        "currents, overheat the capacitors and blow fuses. A result at one frequency "
+        "does not show this: sweep the frequency, and for real banks ask for a harmonic "
+        "study or consider a detuned (reactor-protected) bank.",
+    ),
+    (
+        "Overvoltage at light load",
+        "Capacitance sized for full load leaves the power factor leading when the load "
+        "drops, and the voltage then rises along the feeder. Check the capacitor voltage "
+        "and current against their ratings at the lightest load as well as the heaviest, "
+        "and switch capacitance off as the load falls.",
+    ),
+    (
+        "Switching transients are not covered",
+        "Energising a capacitor bank, above all next to one already energised, draws a "
+        "high-frequency inrush current and causes overvoltages; reclosing onto a bank "
+        "still charged with the opposite polarity is worse. Steady-state phasor results "
+        "say nothing about these events: wait out the discharge time before "
+        "re-energising, and have switching duty checked separately.",
+    ),
+    (
+        "Scope of the results",
+        "Every element is ideal and linear: no saturation, losses only where modelled, "
+        "no temperature or ageing, one frequency at a time. The results are estimates for "
+        "study and teaching, not a protection, short-circuit or arc-flash study.",
+    ),
+    (
+        "Codes and licensed practice come first",
+        "Follow the electrical code that applies (for example the NEC, IEC 60364, and "
+        "the rules of the supply utility) and the capacitor maker's instructions. Any work "
+        "on a real installation is for licensed engineers and electricians.",
+    ),
+)
+
+
+def cautions_text(width: int = 0) -> str:
+    """The cautions as plain text for a terminal or a README: titles, then text.
+
+    ``width`` > 0 wraps the text to that many columns (indented under its title).
+    """
+    import textwrap
+
+    blocks = []
+    for heading, body in CAUTIONS:
+        if width > 0:
+            body = textwrap.fill(body, width=width, initial_indent="  ", subsequent_indent="  ")
+        blocks.append(f"{heading}\n{body}")
+    return "\n\n".join(blocks)
