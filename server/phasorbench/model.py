@@ -9,6 +9,7 @@ needs to know about prefixes, units or per-source ``rms``/``peak`` options.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from itertools import chain
 
 GROUND = "0"
 
@@ -98,8 +99,7 @@ class Circuit:
 
     def nodes(self) -> list[str]:
         """Every node that an element terminal touches, ground first, in order of appearance."""
-        seen = {GROUND: None}
-        for element in self.elements.values():
-            for node in element.nodes:
-                seen.setdefault(node, None)
+        seen = dict.fromkeys((GROUND,))
+        seen.update(dict.fromkeys(chain.from_iterable(
+            e.nodes for e in self.elements.values())))
         return list(seen)

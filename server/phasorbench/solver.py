@@ -13,6 +13,8 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from itertools import chain
+from operator import attrgetter, itemgetter
 
 import numpy as np
 import scipy.sparse as sp
@@ -97,89 +99,52 @@ def solve(circuit: Circuit) -> Solution:
     """
     omega = 2.0 * math.pi * circuit.frequency
     elements = list(circuit.elements.values())
-    names = tuple(e.name for e in elements)
-    position = {name: i for i, name in enumerate(names)}
+    count = len(elements)
+    names = tuple(circuit.elements)
 
+    # Columns of the element table in one pass (attribute access is the cost here).
+    kinds, value_list, node_list = zip(*map(_COLUMNS, elements)) if elements else ((), (), ())
+    codes = np.fromiter(map(_KIND_CODE.__getitem__, kinds), np.int8, count)
+    values = np.array(value_list, dtype=complex)
+
+    # Node table: every node in order of appearance; references read the appended 0 V.
+    all_nodes = list(dict.fromkeys(chain((GROUND,), chain.from_iterable(node_list))))
     references = {GROUND, *circuit.references}
-    node_names = [n for n in circuit.nodes() if n not in references]
+    node_names = [n for n in all_nodes if n not in references]
     n_nodes = len(node_names)
-    index = {name: i for i, name in enumerate(node_names)}
+    index = dict(zip(node_names, range(n_nodes)))
     for ref in references:
         index[ref] = -1
+    p_all = np.fromiter(map(index.__getitem__, map(itemgetter(0), node_list)), np.int64, count)
+    n_all = np.fromiter(map(index.__getitem__, map(itemgetter(1), node_list)), np.int64, count)
 
-    sensed = {e.sense_element for e in elements if e.sense_element is not None}
-    coupled = {name for c in circuit.couplings.values() for name in c.inductors}
-    branch_of: dict[str, int] = {}
-    for e in elements:
-        if (e.kind in ("voltage", "vcvs", "ccvs", "transformer") or e.name in sensed
-                or e.name in coupled or is_short(e)):
-            branch_of[e.name] = n_nodes + len(branch_of)
+    # Which elements need a branch-current unknown.
+    branch_mask = codes >= _FIRST_BRANCH_CODE
+    branch_mask |= (values == 0) & (codes <= _KIND_CODE["impedance"])
+    sensing = np.flatnonzero((codes == _KIND_CODE["ccvs"]) | (codes == _KIND_CODE["cccs"]))
+    special = {elements[k].sense_element for k in sensing.tolist()}
+    special |= {name for c in circuit.couplings.values() for name in c.inductors}
+    if special:
+        position = dict(zip(names, range(count)))
+        branch_mask[[position[name] for name in special]] = True
+    branch_rows = np.flatnonzero(branch_mask)
+    branch_of = {names[k]: n_nodes + j for j, k in enumerate(branch_rows.tolist())}
     size = n_nodes + len(branch_of)
 
     A = _Triplets()
     b = np.zeros(size, dtype=complex)
 
     # Admittance-form passives: the bulk of any large circuit, stamped in one go.
-    nodal = [e for e in elements if e.name not in branch_of and
-             e.kind in ("resistor", "capacitor", "inductor", "impedance", "admittance")]
-    if nodal:
-        p = np.fromiter((index[e.nodes[0]] for e in nodal), np.int64, len(nodal))
-        n = np.fromiter((index[e.nodes[1]] for e in nodal), np.int64, len(nodal))
-        y = _admittances(nodal, omega)
-        A.add(np.concatenate([p, n, p, n]), np.concatenate([p, n, n, p]),
-              np.concatenate([y, y, -y, -y]))
+    nodal_mask = (codes <= _KIND_CODE["admittance"]) & ~branch_mask
+    nodal_rows = np.flatnonzero(nodal_mask)
+    y = _admittances(codes[nodal_rows], values[nodal_rows], omega)
+    p, n = p_all[nodal_rows], n_all[nodal_rows]
+    A.add(np.concatenate([p, n, p, n]), np.concatenate([p, n, n, p]),
+          np.concatenate([y, y, -y, -y]))
 
-    for e in elements:
-        kind = e.kind
-        col = branch_of.get(e.name)
-        if col is None:
-            p, n = index[e.nodes[0]], index[e.nodes[1]]
-            if kind == "current":
-                if p >= 0:
-                    b[p] -= e.value
-                if n >= 0:
-                    b[n] += e.value
-            elif kind == "vccs":
-                c, d = index[e.sense_nodes[0]], index[e.sense_nodes[1]]
-                A.add([p, p, n, n], [c, d, c, d], [e.value, -e.value, -e.value, e.value])
-            elif kind == "cccs":
-                s = branch_of[e.sense_element]
-                A.add([p, n], [s, s], [e.value, -e.value])
-            continue
-        # Branch form: KCL gets +I at p and -I at n, and row `col` defines I.
-        if kind == "transformer":
-            p1, n1, p2, n2 = (index[x] for x in e.nodes)
-            ratio = e.value.real
-            A.add([p1, n1, p2, n2], [col] * 4, [1.0, -1.0, -ratio, ratio])
-            A.add([col] * 4, [p1, n1, p2, n2], [1.0, -1.0, -ratio, ratio])
-            continue
-        p, n = index[e.nodes[0]], index[e.nodes[1]]
-        A.add([p, n], [col, col], [1.0, -1.0])
-        if kind in ("voltage", "vcvs", "ccvs") or kind in ("resistor", "impedance",
-                                                          "inductor", "capacitor"):
-            A.add([col, col], [p, n], [1.0, -1.0])
-        if kind == "voltage":
-            b[col] = e.value
-        elif kind == "vcvs":
-            c, d = index[e.sense_nodes[0]], index[e.sense_nodes[1]]
-            A.add([col, col], [c, d], [-e.value, e.value])
-        elif kind == "ccvs":
-            A.add([col], [branch_of[e.sense_element]], [-e.value])
-        elif kind in ("resistor", "impedance", "capacitor"):
-            z = 1.0 / _admittance(kind, e.value, omega) if not is_short(e) else 0.0
-            A.add([col], [col], [-z])
-        elif kind == "inductor":
-            A.add([col], [col], [-1j * omega * e.value])
-        elif kind == "admittance":          # sensed: I - Y·(Vp - Vn) = 0
-            A.add([col, col, col], [col, p, n], [1.0, -e.value, e.value])
-        elif kind == "current":
-            A.add([col], [col], [1.0])
-            b[col] = e.value
-        elif kind == "vccs":
-            c, d = index[e.sense_nodes[0]], index[e.sense_nodes[1]]
-            A.add([col, col, col], [col, c, d], [1.0, -e.value, e.value])
-        elif kind == "cccs":
-            A.add([col, col], [col, branch_of[e.sense_element]], [1.0, -e.value])
+    others = np.flatnonzero(~nodal_mask).tolist()
+    for k in others:
+        _stamp(elements[k], branch_of.get(names[k]), index, branch_of, omega, A, b)
     for coupling in circuit.couplings.values():
         a, c = coupling.inductors
         zm = 1j * omega * coupling.m
@@ -189,50 +154,98 @@ def solve(circuit: Circuit) -> Solution:
     x, condition, warnings = _factor_and_solve(matrix, b, circuit, node_names, branch_of)
 
     v_ext = np.append(x[:n_nodes], 0.0)           # index -1 reads the appended 0 V
-    voltage = np.empty(len(elements), dtype=complex)
-    current = np.empty(len(elements), dtype=complex)
-    if elements:
-        p = np.fromiter((index[e.nodes[0]] for e in elements), np.int64, len(elements))
-        n = np.fromiter((index[e.nodes[1]] for e in elements), np.int64, len(elements))
-        voltage[:] = v_ext[p] - v_ext[n]
-    if nodal:
-        rows = np.fromiter((position[e.name] for e in nodal), np.int64, len(nodal))
-        current[rows] = y * voltage[rows]
+    voltage = v_ext[p_all] - v_ext[n_all]
+    current = np.zeros(count, dtype=complex)
+    current[nodal_rows] = y * voltage[nodal_rows]
+    current[branch_rows] = x[n_nodes:]
     secondary = {}
-    for e in elements:
-        i = position[e.name]
-        col = branch_of.get(e.name)
-        if col is not None:
-            current[i] = x[col]
-            if e.kind == "transformer":
-                v2 = v_ext[index[e.nodes[2]]] - v_ext[index[e.nodes[3]]]
-                secondary[e.name] = (complex(v2), complex(-e.value.real * x[col]))
+    for k in others:
+        e = elements[k]
+        if e.kind == "transformer":
+            v2 = v_ext[index[e.nodes[2]]] - v_ext[index[e.nodes[3]]]
+            secondary[e.name] = (complex(v2), complex(-e.value.real * current[k]))
+        elif branch_mask[k]:
+            continue
         elif e.kind == "current":
-            current[i] = e.value
+            current[k] = e.value
         elif e.kind == "vccs":
-            current[i] = e.value * (v_ext[index[e.sense_nodes[0]]] -
+            current[k] = e.value * (v_ext[index[e.sense_nodes[0]]] -
                                     v_ext[index[e.sense_nodes[1]]])
         elif e.kind == "cccs":
-            current[i] = e.value * x[branch_of[e.sense_element]]
+            current[k] = e.value * x[branch_of[e.sense_element]]
 
-    node_voltages = {GROUND: 0j}
-    for ref in circuit.references:
-        node_voltages[ref] = 0j
-    node_voltages.update(zip(node_names, x[:n_nodes].tolist()))
-    ordered = {name: node_voltages[name] for name in circuit.nodes()}
-    return Solution(circuit, names, ordered, voltage, current, secondary,
+    all_index = np.fromiter(map(index.__getitem__, all_nodes), np.int64, len(all_nodes))
+    node_voltages = dict(zip(all_nodes, v_ext[all_index].tolist()))
+    return Solution(circuit, names, node_voltages, voltage, current, secondary,
                     tuple(circuit.warnings) + tuple(warnings), condition)
 
 
-def _admittances(nodal, omega: float) -> np.ndarray:
-    kinds = np.array([e.kind for e in nodal])
-    values = np.fromiter((e.value for e in nodal), complex, len(nodal))
+_COLUMNS = attrgetter("kind", "value", "nodes")
+_KIND_CODE = {"resistor": 0, "impedance": 1, "capacitor": 2, "inductor": 3, "admittance": 4,
+              "current": 5, "vccs": 6, "cccs": 7,
+              "voltage": 8, "vcvs": 9, "ccvs": 10, "transformer": 11}
+_FIRST_BRANCH_CODE = _KIND_CODE["voltage"]
+
+
+def _stamp(e, col, index, branch_of, omega, A: _Triplets, b: np.ndarray) -> None:
+    """Stamp one element that is not a plain admittance (sources, branch-form elements)."""
+    kind = e.kind
+    if col is None:
+        p, n = index[e.nodes[0]], index[e.nodes[1]]
+        if kind == "current":
+            if p >= 0:
+                b[p] -= e.value
+            if n >= 0:
+                b[n] += e.value
+        elif kind == "vccs":
+            c, d = index[e.sense_nodes[0]], index[e.sense_nodes[1]]
+            A.add([p, p, n, n], [c, d, c, d], [e.value, -e.value, -e.value, e.value])
+        elif kind == "cccs":
+            s = branch_of[e.sense_element]
+            A.add([p, n], [s, s], [e.value, -e.value])
+        return
+    # Branch form: KCL gets +I at p and -I at n, and row `col` defines I.
+    if kind == "transformer":
+        p1, n1, p2, n2 = (index[x] for x in e.nodes)
+        ratio = e.value.real
+        A.add([p1, n1, p2, n2], [col] * 4, [1.0, -1.0, -ratio, ratio])
+        A.add([col] * 4, [p1, n1, p2, n2], [1.0, -1.0, -ratio, ratio])
+        return
+    p, n = index[e.nodes[0]], index[e.nodes[1]]
+    A.add([p, n], [col, col], [1.0, -1.0])
+    if kind in ("voltage", "vcvs", "ccvs", "resistor", "impedance", "inductor", "capacitor"):
+        A.add([col, col], [p, n], [1.0, -1.0])
+    if kind == "voltage":
+        b[col] = e.value
+    elif kind == "vcvs":
+        c, d = index[e.sense_nodes[0]], index[e.sense_nodes[1]]
+        A.add([col, col], [c, d], [-e.value, e.value])
+    elif kind == "ccvs":
+        A.add([col], [branch_of[e.sense_element]], [-e.value])
+    elif kind in ("resistor", "impedance", "capacitor"):
+        z = 0.0 if is_short(e) else 1.0 / _admittance(kind, e.value, omega)
+        A.add([col], [col], [-z])
+    elif kind == "inductor":
+        A.add([col], [col], [-1j * omega * e.value])
+    elif kind == "admittance":          # sensed: I - Y·(Vp - Vn) = 0
+        A.add([col, col, col], [col, p, n], [1.0, -e.value, e.value])
+    elif kind == "current":
+        A.add([col], [col], [1.0])
+        b[col] = e.value
+    elif kind == "vccs":
+        c, d = index[e.sense_nodes[0]], index[e.sense_nodes[1]]
+        A.add([col, col, col], [col, c, d], [1.0, -e.value, e.value])
+    elif kind == "cccs":
+        A.add([col, col], [col, branch_of[e.sense_element]], [1.0, -e.value])
+
+
+def _admittances(codes: np.ndarray, values: np.ndarray, omega: float) -> np.ndarray:
     y = values.copy()
-    by_z = (kinds == "resistor") | (kinds == "impedance")
+    by_z = codes <= _KIND_CODE["impedance"]
     y[by_z] = 1.0 / values[by_z]
-    cap = kinds == "capacitor"
+    cap = codes == _KIND_CODE["capacitor"]
     y[cap] = 1j * omega * values[cap]
-    ind = kinds == "inductor"
+    ind = codes == _KIND_CODE["inductor"]
     y[ind] = 1.0 / (1j * omega * values[ind])
     return y
 
@@ -241,23 +254,15 @@ def _factor_and_solve(matrix, b, circuit, node_names, branch_of):
     size = matrix.shape[0]
     if size == 0:
         return np.zeros(0, dtype=complex), 1.0, []
-    # Equilibrate rows and columns: MNA mixes siemens with dimensionless rows, and
-    # scaling keeps SuperLU's pivoting and the condition estimate meaningful.
-    magnitude = abs(matrix)
-    row_scale = _safe_inverse(magnitude.max(axis=1).toarray().ravel())
-    scaled = sp.diags(row_scale) @ matrix
-    col_scale = _safe_inverse(abs(scaled).max(axis=0).toarray().ravel())
-    scaled = (scaled @ sp.diags(col_scale)).tocsc()
     try:
-        lu = splu(scaled)
-        y = lu.solve(row_scale * b)
+        lu = splu(matrix)
+        x = lu.solve(b)
     except RuntimeError:
-        raise _singular(scaled, circuit, node_names, branch_of) from None
-    x = col_scale * y
+        raise _singular(matrix, circuit, node_names, branch_of) from None
     if not np.all(np.isfinite(x)):
-        raise _singular(scaled, circuit, node_names, branch_of)
+        raise _singular(matrix, circuit, node_names, branch_of)
     warnings = []
-    condition = _condition_estimate(scaled, lu)
+    condition = _condition_estimate(matrix, lu)
     if not math.isfinite(condition) or condition > CONDITION_WARNING:
         digits = max(0, int(16 - math.log10(condition))) if math.isfinite(condition) else 0
         warnings.append(Diagnostic(
@@ -276,19 +281,32 @@ def _safe_inverse(values: np.ndarray) -> np.ndarray:
 
 
 def _condition_estimate(matrix, lu, iterations: int = 2) -> float:
-    """1-norm condition estimate (Hager's method, as in LAPACK's xLACON), a few solves."""
+    """1-norm condition estimate of the equilibrated matrix B = R·A·C (Hager's method,
+    as in LAPACK's xLACON), reusing the factors of A.
+
+    MNA rows mix siemens with dimensionless constraint rows, so the raw matrix's
+    condition says more about units than about accuracy; scaling rows and columns to
+    unit maximum first makes the number mean digits lost. A is factored unscaled (its
+    pivots then keep the fill of a plain nodal matrix); B⁻¹ = C⁻¹·A⁻¹·R⁻¹ is applied
+    through the same factors, so the estimate costs a few triangular solves.
+    """
+    magnitude = abs(matrix).tocsr()
+    r = _safe_inverse(magnitude.max(axis=1).toarray().ravel())
+    c = _safe_inverse((sp.diags(r) @ magnitude).max(axis=0).toarray().ravel())
+    norm = (sp.diags(r) @ magnitude @ sp.diags(c)).sum(axis=0).max()
     n = matrix.shape[0]
-    norm = abs(matrix).sum(axis=0).max()
     x = np.full(n, 1.0 / n, dtype=complex)
     estimate = 0.0
-    for _ in range(iterations):
-        y = lu.solve(x)
-        estimate = float(np.abs(y).sum())
+    for step in range(iterations):
+        y = lu.solve(x / r) / c                       # B⁻¹·x
+        estimate = max(estimate, float(np.abs(y).sum()))
         if not math.isfinite(estimate):
             return math.inf
-        magnitude = np.abs(y)
-        xi = np.where(magnitude > 0, y / np.where(magnitude > 0, magnitude, 1), 1.0)
-        z = lu.solve(xi, trans="H")
+        if step == iterations - 1:
+            break
+        magnitude_y = np.abs(y)
+        xi = np.where(magnitude_y > 0, y / np.where(magnitude_y > 0, magnitude_y, 1), 1.0)
+        z = lu.solve(xi / c, trans="H") / r           # B⁻ᴴ·ξ
         j = int(np.argmax(np.abs(z)))
         if np.abs(z[j]) <= np.real(np.vdot(z, x)):
             break
