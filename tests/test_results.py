@@ -1,0 +1,148 @@
+"""The contract dict: its shape and conventions, per results-contract.md (the project's
+design document), checked on circuits solved end to end."""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+
+from phasorbench.results import phasor_dicts, power_factor, sequence_components
+from tests.helpers import current, phasor, polar, solve
+
+FEEDER = """title Test feeder
+frequency 60 Hz
+Vgrid:  voltage    a -> GND   240 V
+Rline:  resistor   a -> b     0.15 ohm
+Lline:  inductor   b -> c     0.4 mH
+Zmotor: impedance  c -> gnd   8.2 + j5.1 ohm
+Ccorr:  capacitor  c -> 0     150 uF
+"""
+
+
+def test_contract_fields_and_ground_spelling():
+    r = solve(FEEDER)
+    # results-contract.md: these fields are the stable contract
+    assert {"title", "frequency_hz", "amplitudes", "nodes", "elements", "balance",
+            "warnings"} <= set(r)
+    assert r["title"] == "Test feeder" and r["frequency_hz"] == 60.0
+    assert r["amplitudes"] == "rms"
+    # results-contract.md: ground is "0" in nodes and in every from/to
+    assert "0" in r["nodes"] and "GND" not in r["nodes"] and "gnd" not in r["nodes"]
+    assert r["elements"]["Vgrid"]["to"] == "0" and r["elements"]["Zmotor"]["to"] == "0"
+    for e in r["elements"].values():
+        assert {"kind", "from", "to", "voltage", "current", "impedance", "p_w", "q_var",
+                "s_va", "pf", "pf_sense"} <= set(e)
+        for key in ("voltage", "current"):
+            assert set(e[key]) == {"re", "im", "mag", "deg"}
+    json.dumps(r, allow_nan=False)          # no NaN or infinity anywhere
+
+
+def test_title_is_null_when_missing():
+    r = solve("frequency 50 Hz\nV: voltage a -> 0 1\nR: resistor a -> 0 1")
+    assert r["title"] is None                                 # results-contract.md
+
+
+def test_voltage_is_from_minus_to_and_powers_follow_passive_sign():
+    r = solve(FEEDER)
+    nodes = {k: phasor(v) for k, v in r["nodes"].items()}
+    for e in r["elements"].values():
+        # results-contract.md: voltage is V(from) - V(to)
+        assert phasor(e["voltage"]) == pytest.approx(nodes[e["from"]] - nodes[e["to"]],
+                                                     abs=1e-12)
+        s = phasor(e["voltage"]) * phasor(e["current"]).conjugate()
+        assert (e["p_w"], e["q_var"]) == pytest.approx((s.real, s.imag), abs=1e-9)
+        assert e["s_va"] == pytest.approx(abs(s), abs=1e-9)
+    assert r["elements"]["Vgrid"]["p_w"] < 0                  # a source feeding reports P < 0
+    assert r["elements"]["Rline"]["p_w"] > 0
+
+
+def test_impedance_is_null_for_sources_and_controlled_elements():
+    r = solve("frequency 50 Hz\nV: voltage a -> 0 1\nR: resistor a -> 0 2\n"
+              "E: vcvs b -> 0 2 sense a -> 0\nRb: resistor b -> 0 1")
+    assert r["elements"]["V"]["impedance"] is None
+    assert r["elements"]["E"]["impedance"] is None
+    assert phasor(r["elements"]["R"]["impedance"]) == pytest.approx(2 + 0j)
+
+
+def test_angles_lie_in_the_half_open_range():
+    # results-contract.md: deg in (-180, 180]
+    r = solve("frequency 50 Hz\nV: voltage a -> 0 1 V phase 180 deg\nR: resistor a -> 0 1")
+    assert r["nodes"]["a"]["deg"] == pytest.approx(180.0)
+    values = phasor_dicts([complex(-1, -0.0), complex(-1, 0.0), 1j, -1j, 0j])
+    for d in values:
+        assert -180.0 < d["deg"] <= 180.0
+
+
+def test_power_factor_sense_rules():
+    # results-contract.md: passive lagging when it takes Q; a source quotes its load's sense
+    assert power_factor(3, 4, 5, source=False) == (0.6, "lagging")
+    assert power_factor(3, -4, 5, source=False) == (0.6, "leading")
+    assert power_factor(-3, -4, 5, source=True) == (0.6, "lagging")
+    assert power_factor(-3, 4, 5, source=True) == (0.6, "leading")
+    assert power_factor(0, 0, 0, source=False) == (1.0, "unity")
+    assert power_factor(5, 1e-12, 5, source=False)[1] == "unity"
+
+
+def test_peak_amplitudes_report_peak_magnitudes():
+    r = solve("frequency 50 Hz\namplitudes peak\nV: voltage a -> 0 10 V\nR: resistor a -> 0 5")
+    assert r["amplitudes"] == "peak"
+    assert r["elements"]["R"]["current"]["mag"] == pytest.approx(2.0)
+    # results-contract.md: ½·V·I* with peak phasors
+    assert r["elements"]["R"]["p_w"] == pytest.approx(10.0)
+
+
+def test_transformer_reports_secondary_and_both_ports_power():
+    r = solve("frequency 50 Hz\nV: voltage p -> 0 100 V\n"
+              "T: transformer p -> 0, s -> 0 ratio 5:1\nR: resistor s -> 0 4 ohm")
+    t = r["elements"]["T"]
+    assert set(t["secondary"]) >= {"voltage", "current"}
+    assert phasor(t["secondary"]["voltage"]) == pytest.approx(20 + 0j)
+    assert t["impedance"] is None
+    assert abs(t["p_w"]) < 1e-9 and abs(t["q_var"]) < 1e-9     # an ideal transformer is lossless
+
+
+def test_couplings_are_listed_apart_from_elements():
+    r = solve("frequency 50 Hz\nV: voltage a -> 0 1\nL1: inductor a -> 0 10 mH\n"
+              "L2: inductor b -> 0 40 mH\nR: resistor b -> 0 5\nK: coupling L1 L2 k 0.5")
+    assert "K" not in r["elements"]
+    assert r["couplings"]["K"]["inductors"] == ["L1", "L2"]
+    assert r["couplings"]["K"]["m_h"] == pytest.approx(0.5 * math.sqrt(10e-3 * 40e-3))
+
+
+def test_warnings_have_the_contract_shape():
+    r = solve("frequency 50 Hz\nV: voltage a -> 0 1\nR: resistor a -> 0 1\n"
+              "Rx: resistor a -> c3 1")
+    assert r["warnings"], "a node reached by one terminal is a warning"
+    w = r["warnings"][0]
+    assert set(w) == {"line", "column", "message", "hint"}
+    assert w["line"] == 4 and "c3" in w["message"]
+
+
+def test_isolated_part_gets_its_own_reference():
+    r = solve("frequency 50 Hz\nV: voltage p -> 0 100 V\n"
+              "T: transformer p -> 0, s -> t ratio 2:1\nR: resistor s -> t 5 ohm")
+    assert r["references"] == ["t"]
+    assert r["nodes"]["t"]["mag"] == 0.0
+    assert current(r, "R") == pytest.approx(10 + 0j)
+    assert any("no conductive path to ground" in w["message"] for w in r["warnings"])
+
+
+def test_balance_is_in_every_result():
+    r = solve(FEEDER)
+    total = sum(e["s_va"] for e in r["elements"].values())
+    # Tellegen's theorem (common practice, no source)
+    assert abs(complex(r["balance"]["p_w"], r["balance"]["q_var"])) <= 1e-12 * total
+    assert r["balance"]["ok"] is True
+
+
+def test_fortescue_identities():
+    # Fortescue (1918): a balanced abc set has only a positive-sequence part;
+    # check-values C27 (Grainger & Stevenson, open conductor, from memory)
+    zero, pos, neg = sequence_components([polar(1, 0), polar(1, -120), polar(1, 120)])
+    assert abs(zero) < 1e-15 and abs(neg) < 1e-15 and pos == pytest.approx(1 + 0j)
+    zero, pos, neg = sequence_components([10, -10, 0])
+    assert abs(zero) < 1e-14
+    assert pos == pytest.approx(polar(5.7735, -30), rel=1e-5)
+    assert neg == pytest.approx(polar(5.7735, 30), rel=1e-5)
