@@ -2,10 +2,20 @@
 
 ``create_app()`` in ``app.py`` lists every route; ``serve.py`` is the ``serve`` command.
 This package is a thin shell over ``workflow.py``: it imports FastAPI and Jinja2,
-which the core never does.
+which the core never does. They are imported on first use, so the command line's
+``solve`` does not pay for them.
 """
 
-from .app import create_app
-from .settings import Settings
+from __future__ import annotations
 
 __all__ = ["Settings", "create_app"]
+
+
+def __getattr__(name: str):
+    if name == "create_app":
+        from .app import create_app
+        return create_app
+    if name == "Settings":
+        from .settings import Settings
+        return Settings
+    raise AttributeError(name)

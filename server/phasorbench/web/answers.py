@@ -8,8 +8,11 @@ formats a number itself. Input problems raise ``CircuitError``.
 from __future__ import annotations
 
 from .. import workflow
+from ..drawing.phasors import phasor_diagram_svg
+from ..drawing.waveforms import waveform_svg
 from ..errors import CircuitError, Diagnostic
-from .display import solve_display
+from ..waveforms import sample_element
+from .display import solve_display, waveform_display
 from .limits import check_size
 from .settings import Settings
 
@@ -75,27 +78,27 @@ def _picked(result: dict, names: list[str], settings: Settings) -> list[str]:
     return picked
 
 
-def waveforms_answer(text: str, names: list[str], settings: Settings) -> dict:
+def waveforms_answer(text: str, names: list[str], size: dict, settings: Settings) -> dict:
     """Samples of v(t), i(t), p(t) and their SVG for each named element.
 
-    ``{"elements": {name: {"samples": {...}, "svg": "<svg ...>"}}, "order": [names]}``
+    ``{"elements": {name: {"samples": {...}, "svg": "<svg ...>", "display": {...}}},
+    "order": [names]}``; ``size`` may hold the picture's ``width`` and ``height`` in px.
     """
-    from ..drawing.waveforms import waveform_svg
-    from ..waveforms import sample_element
-
     result = _solved(text, settings)
     picked = _picked(result, names, settings)
     out = {}
     for name in picked:
         samples = sample_element(result, name)
-        out[name] = {"samples": samples, "svg": waveform_svg(samples)}
+        out[name] = {"samples": samples, "svg": waveform_svg(samples, **size),
+                     "display": waveform_display(samples)}
     return {"elements": out, "order": picked}
 
 
-def phasors_answer(text: str, names: list[str], settings: Settings) -> dict:
-    """The phasor diagram SVG of the named elements: ``{"svg": "...", "elements": [...]}``."""
-    from ..drawing.phasors import phasor_diagram_svg
+def phasors_answer(text: str, names: list[str], size: dict, settings: Settings) -> dict:
+    """The phasor diagram SVG of the named elements: ``{"svg": "...", "elements": [...]}``.
 
+    ``size`` may hold the picture's ``width`` and ``height`` in px.
+    """
     result = _solved(text, settings)
     picked = _picked(result, names, settings)
-    return {"svg": phasor_diagram_svg(result, picked), "elements": picked}
+    return {"svg": phasor_diagram_svg(result, picked, **size), "elements": picked}

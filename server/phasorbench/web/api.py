@@ -19,6 +19,7 @@ from ..errors import CircuitError
 from . import answers
 from .jsonsafe import StrictJSONResponse
 from .samples import list_samples
+from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX
 
 log = logging.getLogger("phasorbench.web")
 
@@ -33,9 +34,17 @@ class CircuitBody(BaseModel):
 
 
 class ViewBody(CircuitBody):
-    """A circuit text and the elements a picture should show."""
+    """A circuit text, the elements a picture should show, and optionally its size."""
 
     elements: list[str] = Field(description="element names, as in the circuit's results")
+    width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
+                              description="picture width in px (the page sends its panel's width "
+                                          "so text is drawn at its true size)")
+    height: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
+                               description="picture height in px")
+
+    def size(self) -> dict:
+        return {k: v for k, v in (("width", self.width), ("height", self.height)) if v is not None}
 
 
 def error_item(message: str, hint: str = "") -> dict:
@@ -82,12 +91,14 @@ async def solve(body: CircuitBody, request: Request):
 
 async def waveforms(body: ViewBody, request: Request):
     """v(t), i(t), p(t) of the named elements over two periods, samples and SVG each."""
-    return await run_job(request, answers.waveforms_answer, body.netlist, body.elements)
+    return await run_job(request, answers.waveforms_answer, body.netlist, body.elements,
+                         body.size())
 
 
 async def phasors(body: ViewBody, request: Request):
     """The phasor diagram (SVG) of the named elements' voltages and currents."""
-    return await run_job(request, answers.phasors_answer, body.netlist, body.elements)
+    return await run_job(request, answers.phasors_answer, body.netlist, body.elements,
+                         body.size())
 
 
 async def samples(request: Request):

@@ -11,15 +11,14 @@ from __future__ import annotations
 import math
 
 from ..formatting import (ELEMENT_COLUMNS, NODE_COLUMNS, element_rows, eng, node_rows,
-                          power_factor)
+                          plain, power_factor)
 
-#: The balance is "closed" when its residual is below this fraction of the power that
-#: flows (half the sum of |S|, since every VA delivered is also taken): solves in double
-#: precision leave ~1e-16 relative error times the matrix condition.
+#: Used only when a result carries no balance verdict of its own (results.py gives one):
+#: the residual may be this fraction of the summed |S| (double-precision round-off
+#: times the matrix condition stays far below it).
 BALANCE_TOLERANCE = 1e-9
 
-SIGN_CONVENTION = ("passive sign: P, Q > 0 taken by an element, < 0 delivered; "
-                   "V = V(from) − V(to), I flows from → to")
+SIGN_CONVENTION = "passive sign: P, Q > 0 taken, < 0 delivered; V = V(from) − V(to), I from → to"
 
 SOURCE_KINDS = ("voltage", "current", "vcvs", "vccs", "ccvs", "cccs")
 
@@ -41,20 +40,29 @@ def _number(value) -> float:
 def balance_check(result: dict) -> dict:
     """Is the sum of complex power zero up to round-off (Tellegen's theorem)?
 
-    Returns ``{"ok", "residual_va", "scale_va", "text"}``; ``text`` says the outcome in
-    words, so the page never relies on colour alone.
+    Reads the verdict the core put in ``result["balance"]``; returns ``{"ok",
+    "residual_va", "relative", "text", "detail"}``. ``text`` says the outcome in words, so the
+    page never relies on colour alone.
     """
     balance = result.get("balance") or {}
     residual = math.hypot(_number(balance.get("p_w")), _number(balance.get("q_var")))
-    scale = 0.5 * sum(_number(e.get("s_va")) for e in result.get("elements", {}).values())
-    ok = residual <= BALANCE_TOLERANCE * scale or residual == 0.0
+    if "relative" in balance and "ok" in balance:
+        relative, ok = _number(balance["relative"]), bool(balance["ok"])
+        tolerance = _number(balance.get("tolerance", BALANCE_TOLERANCE))
+    else:
+        total = sum(_number(e.get("s_va")) for e in result.get("elements", {}).values())
+        relative = residual / total if total > 0 else 0.0
+        tolerance = BALANCE_TOLERANCE
+        ok = relative <= tolerance
     shown = eng(residual, "VA", digits=2)
+    detail = (f"sum of S over all elements = {shown}, {plain(relative, digits=2)} of Σ|S| "
+              f"(limit {plain(tolerance, digits=2)})")
     if ok:
         text = f"power balance closes (residual {shown})"
     else:
-        text = (f"power balance does NOT close: residual {shown} of "
-                f"{eng(scale, 'VA')} flowing")
-    return {"ok": ok, "residual_va": residual, "scale_va": scale, "text": text}
+        text = f"power balance does NOT close: residual {shown}"
+    return {"ok": ok, "residual_va": residual, "relative": relative, "text": text,
+            "detail": detail}
 
 
 def facts(result: dict) -> dict:
@@ -63,8 +71,8 @@ def facts(result: dict) -> dict:
     return {
         "title": result.get("title"),
         "frequency": eng(result.get("frequency_hz"), "Hz"),
-        "amplitudes": ("RMS phasors (|V|, |I| are RMS values)" if amplitudes == "rms"
-                       else "peak phasors (|V|, |I| are peak values; S = ½·V·I*)"),
+        "amplitudes": ("magnitudes are RMS (S = V·I*)" if amplitudes == "rms"
+                       else "magnitudes are peak (S = ½·V·I*)"),
         "sign": SIGN_CONVENTION,
         "balance": balance_check(result),
     }
@@ -85,7 +93,8 @@ def _source_row(name: str, el: dict) -> dict:
 def power_summary(result: dict) -> dict:
     """Each source's delivered P, Q, |S|, PF, and the totals taken by each kind of element.
 
-    ``{"sources": [row], "totals": [{"label", "count", "values", "text"}]}``; totals use
+    ``{"sources": [row], "totals": [{"label", "count", "values", "text"}], "groups":
+    [row]}`` (``groups``: three-phase blocks, passive sign); totals use
     the passive sign (taken > 0), so the sources' row is negative and all rows add to
     the balance residual.
     """
@@ -103,7 +112,15 @@ def power_summary(result: dict) -> dict:
         totals.append({"label": label, "count": len(members),
                        "values": {"p_w": p, "q_var": q},
                        "text": {"p": eng(p, "W", floor=floor), "q": eng(q, "var", floor=floor)}})
-    return {"sources": sources, "totals": totals}
+    groups = [{"name": name, "kind": g.get("kind"),
+               "values": {"p_w": g.get("p_w"), "q_var": g.get("q_var"), "s_va": g.get("s_va")},
+               "text": {"name": name, "kind": g.get("kind", ""),
+                        "p": eng(g.get("p_w"), "W", floor=floor),
+                        "q": eng(g.get("q_var"), "var", floor=floor),
+                        "s": eng(g.get("s_va"), "VA", floor=floor),
+                        "pf": power_factor(g.get("pf"), g.get("pf_sense"))}}
+              for name, g in (result.get("groups") or {}).items()]
+    return {"sources": sources, "totals": totals, "groups": groups}
 
 
 def solve_display(result: dict) -> dict:
@@ -116,4 +133,23 @@ def solve_display(result: dict) -> dict:
         "nodes": node_rows(result),
         "summary": power_summary(result),
         "warnings": [w.get("message", "") for w in result.get("warnings", [])],
+    }
+
+
+def waveform_display(samples: dict) -> dict:
+    """The numbers listed beside a waveform picture, as text."""
+    # Round-off (a resistor's returned energy of 1e-18 J) reads as 0.
+    floor = 1e-9 * max(abs(samples.get("s_va", 0.0)), abs(samples.get("p_avg", 0.0)))
+    period = samples.get("period_s", 0.0)
+    return {
+        "p_avg": eng(samples.get("p_avg"), "W", floor=floor),
+        "q_var": eng(samples.get("q_var"), "var", floor=floor),
+        "s_va": eng(samples.get("s_va"), "VA"),
+        "v_peak": eng(samples.get("v_peak"), "V"),
+        "i_peak": eng(samples.get("i_peak"), "A"),
+        "p_range": (f"{eng(samples.get('p_min'), 'W', floor=floor)} to "
+                    f"{eng(samples.get('p_max'), 'W', floor=floor)}"),
+        "returned_energy": eng(samples.get("returned_energy_j"), "J", floor=floor * period),
+        "absorbed_energy": eng(samples.get("absorbed_energy_j"), "J", floor=floor * period),
+        "period": eng(period, "s"),
     }

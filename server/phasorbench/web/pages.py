@@ -12,6 +12,19 @@ from .. import __version__
 from ..cautions import CAUTIONS, SCOPE_NOTE
 
 
+#: Headers of every page: scripts and data from this server only, no framing by other
+#: sites (clickjacking). Inline styles stay allowed: the server's SVG pictures carry a
+#: <style> of their own and the editor places its marks with style attributes.
+PAGE_HEADERS = {
+    "Content-Security-Policy": ("default-src 'self'; script-src 'self'; connect-src 'self'; "
+                                "img-src 'self' data:; style-src 'self' 'unsafe-inline'; "
+                                "object-src 'none'; base-uri 'none'; form-action 'self'; "
+                                "frame-ancestors 'none'"),
+    "X-Content-Type-Options": "nosniff",
+    "Referrer-Policy": "no-referrer",
+}
+
+
 def _templates(request: Request):
     return request.app.state.templates
 
@@ -28,7 +41,8 @@ async def workbench(request: Request):
         "max_elements": settings.max_elements,
         "max_view_elements": settings.max_view_elements,
     }
-    return _templates(request).TemplateResponse(request, "workbench.html", context)
+    return _templates(request).TemplateResponse(request, "workbench.html", context,
+                                                headers=PAGE_HEADERS)
 
 
 def _operations(schema: dict) -> list[dict]:
@@ -66,4 +80,5 @@ async def api_docs(request: Request):
     schema = request.app.openapi()
     context = {"version": __version__, "operations": _operations(schema),
                "models": _models(schema), "title": schema.get("info", {}).get("title", "")}
-    return _templates(request).TemplateResponse(request, "api_docs.html", context)
+    return _templates(request).TemplateResponse(request, "api_docs.html", context,
+                                                headers=PAGE_HEADERS)

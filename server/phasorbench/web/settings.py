@@ -21,6 +21,10 @@ MAX_BODY_BYTES = 2 * 1024 * 1024
 MAX_ELEMENTS = 5000
 #: Elements whose waveforms or phasors one request may ask for (one SVG each).
 MAX_VIEW_ELEMENTS = 24
+#: Bounds of a picture size a request may ask for: smaller is unreadable, larger is
+#: no screen's panel and only makes the reply grow.
+MIN_PICTURE_PX = 240
+MAX_PICTURE_PX = 2400
 #: Solves run in worker threads so one heavy circuit never freezes the event loop;
 #: two cores here, so a few workers keep the page responsive without thrashing.
 SOLVE_WORKERS = 4

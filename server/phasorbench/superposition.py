@@ -1,0 +1,77 @@
+"""Sources at several frequencies: one phasor solve per frequency, added by superposition.
+
+A linear circuit driven at several frequencies (a fundamental and harmonic sources, say)
+is the sum of its responses to each frequency alone. Each solve keeps every element
+and sets the sources of the other frequencies to zero (a voltage source becomes a
+short, a current source an open). The contract's top level stays the analysis
+frequency; the other frequencies come as full contract dicts under ``harmonics``, and
+``rms_totals`` holds what a meter would read: V and I as the root-sum-square of the
+components, P as the sum of the per-frequency powers, S = V·I and PF = P/S (the
+IEEE Std 1459-2010 definitions for non-sinusoidal quantities).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+from .errors import Diagnostic
+from .model import Circuit
+
+#: Two source frequencies closer than this (relative) are the same frequency.
+SAME_FREQUENCY = 1e-12
+
+
+def source_frequencies(circuit: Circuit) -> list[float]:
+    """Distinct frequencies of the circuit, the analysis frequency first."""
+    found = [circuit.frequency]
+    for e in circuit.elements.values():
+        f = e.frequency
+        if f is not None and not any(math.isclose(f, g, rel_tol=SAME_FREQUENCY) for g in found):
+            found.append(f)
+    return [found[0]] + sorted(found[1:])
+
+
+def circuit_at(circuit: Circuit, frequency: float) -> Circuit:
+    """A copy of ``circuit`` at ``frequency`` with the other frequencies' sources at zero."""
+    elements = {}
+    for name, e in circuit.elements.items():
+        own = circuit.frequency if e.frequency is None else e.frequency
+        if e.kind in ("voltage", "current") and not math.isclose(
+                own, frequency, rel_tol=SAME_FREQUENCY):
+            e = replace(e, value=0j)
+        elements[name] = e
+    return replace(circuit, frequency=frequency, elements=elements)
+
+
+def solve_superposed(circuit: Circuit) -> dict:
+    """The contract dict of a circuit whose sources run at several frequencies."""
+    from .results import contract
+    from .solver import solve
+
+    frequencies = source_frequencies(circuit)
+    results = [contract(solve(circuit_at(circuit, f))) for f in frequencies]
+    main = results[0]
+    main["harmonics"] = results[1:]
+    main["rms_totals"] = _rms_totals(results, circuit.amplitudes)
+    shown = ", ".join(f"{f:g} Hz" for f in frequencies)
+    main["warnings"].append(Diagnostic(
+        f"sources run at {len(frequencies)} frequencies ({shown}): the tables show "
+        f"{frequencies[0]:g} Hz; each other frequency is solved on its own and the totals "
+        "add them", "RMS totals: V and I root-sum-square, P summed, PF = P/(V·I)",
+        severity="warning").as_dict())
+    return main
+
+
+def _rms_totals(results: list[dict], amplitudes: str) -> dict:
+    to_rms = 1 / math.sqrt(2) if amplitudes == "peak" else 1.0
+    totals = {}
+    for name in results[0]["elements"]:
+        parts = [r["elements"][name] for r in results]
+        v = math.sqrt(sum(p["voltage"]["mag"] ** 2 for p in parts)) * to_rms
+        i = math.sqrt(sum(p["current"]["mag"] ** 2 for p in parts)) * to_rms
+        p_w = sum(p["p_w"] for p in parts)
+        s = v * i
+        totals[name] = {"v_rms": v, "i_rms": i, "p_w": p_w, "s_va": s,
+                        "pf": abs(p_w) / s if s > 0 else 1.0}
+    return totals

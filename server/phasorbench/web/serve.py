@@ -1,0 +1,119 @@
+"""The ``phasorbench serve`` command: run the workbench on this machine.
+
+It binds to loopback unless told otherwise (and warns when told), prints the URL to
+open, and can open it in the default browser.
+"""
+
+from __future__ import annotations
+
+import argparse
+import ipaddress
+import sys
+import threading
+import webbrowser
+
+from .settings import (DEFAULT_HOST, DEFAULT_PORT, LOOPBACK_NAMES, MAX_ELEMENTS, SETTINGS_HELP,
+                       WILDCARD_HOSTS, Settings)
+
+__all__ = ["add_serve_arguments", "add_serve_command", "serve_main", "is_loopback", "page_url"]
+
+
+def add_serve_arguments(parser: argparse.ArgumentParser) -> None:
+    """The options of ``serve``: ``--host``, ``--port``, ``--open``, ``--sample``, limits."""
+    parser.add_argument("--host", default=DEFAULT_HOST, help=SETTINGS_HELP["host"])
+    parser.add_argument("--port", type=int, default=DEFAULT_PORT, help=SETTINGS_HELP["port"])
+    parser.add_argument("--open", action="store_true", help="open the page in the default browser")
+    parser.add_argument("--sample", metavar="NAME", default=None,
+                        help="sample (a file name in samples/, without .circuit) the page "
+                             "loads when the browser has no saved circuit; default: the first")
+    parser.add_argument("--max-elements", type=int, default=MAX_ELEMENTS,
+                        help=SETTINGS_HELP["max_elements"])
+    parser.add_argument("--allow-host", action="append", default=[], metavar="NAME",
+                        help="also accept this name in the Host header (when serving beyond "
+                             "loopback); may be repeated")
+
+
+def add_serve_command(commands) -> None:
+    """Register ``serve`` on the command line's sub-command set."""
+    serve = commands.add_parser("serve", help="run the workbench page and JSON API on this machine")
+    add_serve_arguments(serve)
+    serve.set_defaults(run=serve_main)
+
+
+def is_loopback(host: str) -> bool:
+    """Whether ``host`` reaches this machine only (127.0.0.0/8, ::1, localhost)."""
+    if host.lower() in LOOPBACK_NAMES:
+        return True
+    try:
+        return ipaddress.ip_address(host.strip("[]")).is_loopback
+    except ValueError:
+        return False
+
+
+def page_url(host: str, port: int) -> str:
+    """The address to open: wildcard binds are shown as 127.0.0.1, IPv6 in brackets."""
+    shown = "127.0.0.1" if host in ("0.0.0.0", "") else "[::1]" if host == "::" else host
+    if ":" in shown and not shown.startswith("["):
+        shown = f"[{shown}]"
+    return f"http://{shown}:{port}/"
+
+
+def serve_main(args) -> int:
+    """Run the server until interrupted; returns the exit status."""
+    import uvicorn
+
+    from .app import create_app
+
+    if not 0 < args.port < 65536:
+        print(f"phasorbench serve: --port must be between 1 and 65535, not {args.port}",
+              file=sys.stderr)
+        return 2
+    sample = getattr(args, "sample", None)
+    settings = Settings(host=args.host, port=args.port, initial_sample=sample,
+                        max_elements=getattr(args, "max_elements", MAX_ELEMENTS),
+                        allowed_hosts=tuple(getattr(args, "allow_host", []) or ()))
+    if sample and not (settings.samples_dir / f"{sample}.circuit").is_file():
+        print(f"phasorbench serve: no sample named '{sample}' in {settings.samples_dir}",
+              file=sys.stderr)
+        return 2
+    if not is_loopback(args.host):
+        reach = ("127.0.0.1 or a name given with --allow-host" if args.host in WILDCARD_HOSTS
+                 else f"{args.host} or a name given with --allow-host")
+        print(f"phasorbench serve: warning: listening on {args.host}, not loopback: other "
+              "machines on the network can reach this server. It has no login; use it "
+              f"only on a network you trust. Requests must address it as {reach}.",
+              file=sys.stderr)
+    try:
+        app = create_app(settings)
+    except RuntimeError as exc:
+        print(f"phasorbench serve: {exc}", file=sys.stderr)
+        return 2
+    url = page_url(args.host, args.port)
+    config = uvicorn.Config(app, host=args.host, port=args.port, log_level="warning",
+                            access_log=False)
+    server = uvicorn.Server(config)
+
+    def announce():
+        # Print the URL once the socket listens, so a script waiting for it can connect.
+        while not server.started and not server.should_exit:
+            threading.Event().wait(0.05)
+        if server.started:
+            print(f"phasorbench: workbench at {url}  (Ctrl+C stops it)", flush=True)
+            if getattr(args, "open", False):
+                webbrowser.open(url)
+
+    announcer = threading.Thread(target=announce, daemon=True)
+    announcer.start()
+    try:
+        server.run()
+    except KeyboardInterrupt:
+        pass
+    except SystemExit:      # uvicorn exits this way when it cannot bind
+        pass
+    server.should_exit = True
+    announcer.join(timeout=1)
+    if not server.started:
+        print(f"phasorbench serve: could not listen on {args.host}:{args.port} "
+              "(is the port in use? try --port)", file=sys.stderr)
+        return 1
+    return 0

@@ -1,0 +1,45 @@
+// The JSON API of the local server: one function per route.
+
+const NO_ANSWER = {
+  errors: [{line: null, column: null, message: "the server did not answer",
+            hint: "is `phasorbench serve` still running?"}],
+  warnings: [],
+};
+
+async function postJSON(path, body, signal) {
+  let response;
+  try {
+    response = await fetch(path, {
+      method: "POST",
+      headers: {"Content-Type": "application/json", "Accept": "application/json"},
+      body: JSON.stringify(body),
+      signal,
+    });
+  } catch (err) {
+    if (err.name === "AbortError") throw err;
+    return {ok: false, status: 0, data: NO_ANSWER};
+  }
+  let data;
+  try {
+    data = await response.json();
+  } catch {
+    data = {errors: [{line: null, column: null, message: `the server answered ${response.status} without JSON`, hint: ""}], warnings: []};
+  }
+  return {ok: response.ok, status: response.status, data};
+}
+
+export const postCheck = (netlist, signal) => postJSON("/api/check", {netlist}, signal);
+export const postSolve = (netlist, signal) => postJSON("/api/solve", {netlist}, signal);
+export const postPhasors = (netlist, elements, size, signal) =>
+  postJSON("/api/phasors", {netlist, elements, ...size}, signal);
+export const postWaveforms = (netlist, elements, size, signal) =>
+  postJSON("/api/waveforms", {netlist, elements, ...size}, signal);
+
+export async function getSamples() {
+  try {
+    const response = await fetch("/api/samples", {headers: {"Accept": "application/json"}});
+    return response.ok ? await response.json() : [];
+  } catch {
+    return [];
+  }
+}

@@ -1,0 +1,57 @@
+"""The ``serve`` command's own decisions: loopback or not, the URL it prints, bad options."""
+
+from __future__ import annotations
+
+import argparse
+
+import pytest
+
+from phasorbench.web import serve
+
+
+def parse(*argv):
+    parser = argparse.ArgumentParser()
+    serve.add_serve_arguments(parser)
+    return parser.parse_args(list(argv))
+
+
+@pytest.mark.parametrize("host, loopback", [
+    # RFC 1122, section 3.2.1.3 (127/8 is loopback) and RFC 4291, section 2.5.3 (::1).
+    ("127.0.0.1", True), ("127.5.0.1", True), ("localhost", True), ("::1", True),
+    ("0.0.0.0", False), ("::", False), ("192.168.1.10", False), ("bench.example", False),
+])
+def test_is_loopback(host, loopback):
+    assert serve.is_loopback(host) is loopback
+
+
+def test_page_url_is_openable():
+    # A wildcard bind is reached locally at 127.0.0.1; IPv6 literals need brackets
+    # in a URL (RFC 3986, section 3.2.2).
+    assert serve.page_url("127.0.0.1", 8000) == "http://127.0.0.1:8000/"
+    assert serve.page_url("0.0.0.0", 8123) == "http://127.0.0.1:8123/"
+    assert serve.page_url("::1", 8000) == "http://[::1]:8000/"
+
+
+def test_defaults_are_loopback_and_8000():
+    args = parse()
+    assert (args.host, args.port, args.open, args.sample) == ("127.0.0.1", 8000, False, None)
+
+
+def test_unknown_sample_is_refused(capsys):
+    assert serve.serve_main(parse("--sample", "no-such-sample", "--port", "8123")) == 2
+    assert "no-such-sample" in capsys.readouterr().err
+
+
+def test_bad_port_is_refused(capsys):
+    assert serve.serve_main(parse("--port", "0")) == 2
+    assert "--port" in capsys.readouterr().err
+
+
+def test_non_loopback_host_warns(monkeypatch, capsys):
+    import uvicorn
+
+    def fake_run(self, sockets=None):      # no socket is opened: only the warning is tested
+        self.started = True
+    monkeypatch.setattr(uvicorn.Server, "run", fake_run)
+    assert serve.serve_main(parse("--host", "0.0.0.0", "--port", "8123")) == 0
+    assert "warning" in capsys.readouterr().err
