@@ -1,0 +1,230 @@
+"""The power tools on the command line: ``phasorbench correct`` and ``phasorbench port``.
+
+``cli.py`` finds ``add_tool_commands`` and registers both; they follow its rules: exit
+0 when answered, 2 when the input is wrong (``FILE: error: ...``, no traceback), 1 for
+an internal failure; ``--json`` prints the result dict with no NaN. Text output is
+built from ``formatting.py`` only, so a number reads as it does on the page.
+"""
+
+from __future__ import annotations
+
+import re
+import sys
+import textwrap
+
+from .cli import EXIT_OK, dump_json, load_source
+from .errors import CircuitError, Diagnostic, format_diagnostic
+from .formatting import eng, phasor, power_factor, rect
+
+__all__ = ["add_tool_commands"]
+
+_FILE_HELP = "a .circuit file, or - for standard input"
+_VOLTS = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?[0-9]+)?)\s*(k?)\s*V?\s*$")
+
+
+def add_tool_commands(commands) -> None:
+    """Register ``correct`` and ``port`` on the command line's sub-command set."""
+    correct = commands.add_parser(
+        "correct", help="size the shunt capacitor that brings a source to a power factor",
+        description="Find the smallest shunt capacitance that brings the power factor seen "
+        "by a source to a target, exactly for the circuit as drawn, and check it by "
+        "solving the corrected circuit.")
+    correct.add_argument("file", metavar="FILE", help=_FILE_HELP)
+    correct.add_argument("--source", required=True, metavar="NAME",
+                         help="the voltage or current source, or voltage3 block")
+    correct.add_argument("--target", required=True, metavar="PF",
+                         help="target power factor in (0, 1], lagging unless --leading")
+    place = correct.add_mutually_exclusive_group()
+    place.add_argument("--at", metavar="NODE|A,B,C",
+                       help="a node (capacitor to ground) or three line nodes (a bank); "
+                       "default: across the source's terminals")
+    place.add_argument("--across", nargs=2, metavar=("A", "B"),
+                       help="a capacitor across two nodes")
+    correct.add_argument("--bank", choices=("wye", "delta"),
+                         help="connection of a three-phase bank (default wye)")
+    correct.add_argument("--neutral", metavar="NODE",
+                         help="star node of a wye bank (default: the source's star when "
+                         "placed at the source, else the bank's own star point)")
+    correct.add_argument("--leading", action="store_true", help="aim at a leading target")
+    correct.add_argument("--rated-voltage", metavar="V",
+                         help="rated rms voltage of each capacitor unit: check its duty "
+                         "against the continuous limits of IEEE Std 18-2002")
+    correct.add_argument("--json", action="store_true", help="print the result as JSON")
+    correct.set_defaults(run=command_correct)
+
+    port = commands.add_parser(
+        "port", help="Thevenin and Norton equivalents seen from two nodes",
+        description="Thevenin and Norton equivalents of the circuit seen from nodes A and B, "
+        "with the conjugate-matched load and the best resistive load.")
+    port.add_argument("file", metavar="FILE", help=_FILE_HELP)
+    port.add_argument("a", metavar="A", help="the port's first node")
+    port.add_argument("b", metavar="B", help="the port's second node (0 for ground)")
+    port.add_argument("--json", action="store_true", help="print the result as JSON")
+    port.set_defaults(run=command_port)
+
+
+def _input_error(message: str, hint: str = "") -> CircuitError:
+    return CircuitError([Diagnostic(message, hint)])
+
+
+def _rated_voltage(text: str | None) -> float | None:
+    if text is None:
+        return None
+    match = _VOLTS.match(text)
+    if not match:
+        raise _input_error(f"--rated-voltage '{text}' is not a voltage",
+                           "e.g. --rated-voltage 480 or 0.48kV")
+    return float(match.group(1)) * (1e3 if match.group(2) else 1.0)
+
+
+def _print_warnings(result: dict, name: str, text: str) -> None:
+    for w in result.get("warnings", []):
+        d = Diagnostic(w["message"], w.get("hint", ""), w.get("line"), w.get("column"), 1,
+                       "warning")
+        print(format_diagnostic(d, name, text), file=sys.stderr)
+
+
+def command_correct(args) -> int:
+    from .tools.correction import correct_power_factor
+    from .workflow import read_circuit
+
+    text, name = load_source(args)
+    circuit = read_circuit(text, name)
+    at = None
+    if args.across:
+        at = tuple(args.across)
+    elif args.at is not None:
+        parts = [p.strip() for p in args.at.split(",")]
+        at = parts[0] if len(parts) == 1 else tuple(parts)
+    result = correct_power_factor(circuit, args.source, args.target, at=at,
+                                  leading=args.leading,
+                                  rated_voltage=_rated_voltage(args.rated_voltage),
+                                  bank=args.bank, neutral=args.neutral)
+    sys.stdout.write(dump_json(result) + "\n" if args.json else correction_text(result))
+    _print_warnings(result, name, text)
+    return EXIT_OK
+
+
+def command_port(args) -> int:
+    from .tools.port import port_equivalent
+    from .workflow import read_circuit
+
+    text, name = load_source(args)
+    result = port_equivalent(read_circuit(text, name), args.a, args.b)
+    sys.stdout.write(dump_json(result) + "\n" if args.json else port_text(result))
+    _print_warnings(result, name, text)
+    return EXIT_OK
+
+
+# --- text reports ------------------------------------------------------------------------
+
+
+def _rows(pairs) -> list[str]:
+    width = max(len(k) for k, _ in pairs)
+    return [f"  {k.ljust(width)}  {v}" for k, v in pairs]
+
+
+def _convention(result: dict) -> str:
+    return "RMS phasors" if result["amplitudes"] == "rms" else "peak phasors"
+
+
+def _supply_current(supply: dict) -> str:
+    current = supply["current"]
+    if "mag" in current:
+        return phasor(current, "A")
+    return ", ".join(f"{k} {phasor(v, 'A')}" for k, v in current.items())
+
+
+def correction_text(r: dict) -> str:
+    """The terminal report of ``correct_power_factor``'s result."""
+    before, after = r["supply_before"], r["supply_after"]
+    units = r["units"]
+    out = [f"Power-factor correction of {r['source']}: capacitor at {r['place']['description']}",
+           f"frequency {eng(r['frequency_hz'], 'Hz')}   {_convention(r)}   method: {r['method']}",
+           ""]
+    each = " each" if units > 1 else ""
+    diff = r["formula_difference_rel"]
+    pairs = [
+        ("capacitance", f"{eng(r['capacitance_f'], 'F', 6)}{each} ({units} unit"
+                        f"{'s' if units > 1 else ''})"),
+        ("reactive power", f"{eng(r['q_var'], 'var')} supplied at the voltage it sees"),
+        ("power factor", f"{power_factor(r['pf_before'], r['pf_sense_before'])} → "
+                         f"{power_factor(r['pf_after'], r['pf_sense_after'], 9)} "
+                         f"(target {power_factor(r['target_pf'], r['target_sense'])})"),
+        ("supply", f"{eng(before['p_w'], 'W')} + {eng(before['q_var'], 'var')} → "
+                   f"{eng(after['p_w'], 'W')} + {eng(after['q_var'], 'var')}"),
+        ("supply current", f"{_supply_current(before)} → {_supply_current(after)}"),
+        ("ideal-bus formula", f"{eng(r['formula_capacitance_f'], 'F', 6)}{each} from "
+                              f"Qc = P(tanφ1 − tanφ2) = {eng(r['formula_q_var'], 'var')} "
+                              f"(exact differs by {100 * diff:+.3f} %)"),
+    ]
+    if units == 1:
+        pairs += [("voltage there", f"{phasor(r['voltage_before'], 'V')} → "
+                                    f"{phasor(r['voltage_after'], 'V')}"),
+                  ("capacitor current", phasor(r["capacitor_current"], "A"))]
+    else:
+        for row in r["capacitors"]:
+            pairs.append((f"{row['name']} ({row['from']} → {row['to']})",
+                          f"{phasor(row['voltage_before'], 'V')} → "
+                          f"{phasor(row['voltage_after'], 'V')}, {phasor(row['current'], 'A')}"))
+        pairs.append(("bank line currents", ", ".join(
+            f"{k} {phasor(v, 'A')}" for k, v in r["bank_line_current"].items())))
+    if r["harmonic_order"] is not None:
+        pairs.append(("resonance", f"h ≈ {r['harmonic_order']:.4g} "
+                                   f"({eng(r['resonance_hz'], 'Hz')}) with the network behind "
+                                   f"it: X_C {eng(r['capacitor_reactance_ohm'], 'Ω')}, "
+                                   f"X_th {eng(r['network_reactance_ohm'], 'Ω')}"))
+    else:
+        pairs.append(("resonance", "none estimated (no inductive network behind this place)"))
+    if r["ieee18"] is not None:
+        check = r["ieee18"]
+        duty = ", ".join(f"{k.replace('_', ' ')} {100 * v:.1f} %"
+                         for k, v in check["duty"].items())
+        state = "within limits" if check["ok"] else "EXCEEDS " + ", ".join(check["exceeded"])
+        pairs.append((check["edition"], f"rated {eng(check['rated_voltage_v'], 'V')}: "
+                                        f"{duty}; {state}"))
+    d = r["discharge"]
+    pairs.append(("stored energy", f"{eng(r['stored_energy_j'], 'J')} in all"))
+    if d["resistor_max_ohm"] is not None:
+        pairs.append(("discharge", f"≤ {eng(d['resistor_max_ohm'], 'Ω')} per unit "
+                                   f"({d['clause']}: {eng(d['residual_v'], 'V')} within "
+                                   f"{d['seconds'] / 60:g} min)"))
+    out += _rows(pairs)
+    out += ["", "Add to the circuit:"] + [f"  {line}" for line in r["circuit_lines"]]
+    out += ["", "Cautions:"]
+    for c in r["cautions"]:
+        body = c["detail"] or c["text"]
+        out.append(textwrap.fill(f"{c['title']}: {body}", width=92, initial_indent="  ",
+                                 subsequent_indent="    "))
+    out += [textwrap.fill(r["scope_note"], width=92, initial_indent="  ",
+                          subsequent_indent="  ")]
+    return "\n".join(out) + "\n"
+
+
+def port_text(r: dict) -> str:
+    """The terminal report of ``port_equivalent``'s result."""
+    a, b = r["a"], r["b"]
+    out = [f"Port {a} → {b}   frequency {eng(r['frequency_hz'], 'Hz')}   {_convention(r)}", ""]
+    pairs = []
+    if r["thevenin_v"] is not None:
+        pairs.append(("Thevenin voltage", f"{phasor(r['thevenin_v'], 'V')}   "
+                                          f"(open-circuit V({a}) − V({b}))"))
+    if r["thevenin_z"] is not None:
+        pairs.append(("Thevenin impedance", f"{rect(r['thevenin_z'], 'Ω')} = "
+                                            f"{phasor(r['thevenin_z'], 'Ω')}"))
+    if r["norton_i"] is not None:
+        pairs.append(("Norton current", f"{phasor(r['norton_i'], 'A')}   ({a} → {b} through "
+                                        "a short)"))
+    if r["norton_y"] is not None:
+        pairs.append(("Norton admittance", rect(r["norton_y"], "S")))
+    if r["matched_load_z"] is not None:
+        pairs.append(("matched load", f"{rect(r['matched_load_z'], 'Ω')} takes "
+                                      f"{eng(r['max_power_w'], 'W')}, the most any load can"))
+    if r["resistive_load_ohm"] is not None:
+        pairs.append(("best resistor", f"{eng(r['resistive_load_ohm'], 'Ω')} takes "
+                                       f"{eng(r['resistive_power_w'], 'W')}"))
+    out += _rows(pairs) if pairs else []
+    for note in r["notes"]:
+        out.append(textwrap.fill(f"note: {note}", width=92, initial_indent="  ",
+                                 subsequent_indent="    "))
+    return "\n".join(out) + "\n"
