@@ -59,8 +59,19 @@ def check_references(circuit: Circuit) -> list[Diagnostic]:
                         f"{element.name} senses node '{node}', which no element touches",
                         "check the spelling of the sensed nodes", element.line, 1,
                         len(element.name)))
+    pairs: dict[frozenset, object] = {}
     for coupling in circuit.couplings.values():
         found.extend(_check_coupling(circuit, coupling))
+        # Two couplings of one pair add their M: |k| could pass 1 with neither out of range.
+        pair = frozenset(coupling.inductors)
+        if len(pair) == 2 and pair in pairs:
+            first = pairs[pair]
+            found.append(Diagnostic(
+                f"coupling {coupling.name} joins {' and '.join(coupling.inductors)} again "
+                f"(first by {first.name} at line {first.line})",
+                "give one coupling per pair of inductors", coupling.line, 1,
+                len(coupling.name)))
+        pairs.setdefault(pair, coupling)
     return found
 
 
@@ -83,10 +94,12 @@ def _check_coupling(circuit: Circuit, coupling) -> list[Diagnostic]:
         return [Diagnostic(f"coupling {coupling.name} joins {coupling.inductors[0]} to itself",
                            "name two different inductors", **where)]
     l1, l2 = (e.value.real for e in inductors)
+    # sqrt of each, not of the product: L1·L2 of two tiny inductors underflows to 0.
+    geometric = math.sqrt(l1) * math.sqrt(l2)
     if coupling.k is None:
-        coupling.k = coupling.m / math.sqrt(l1 * l2)
+        coupling.k = coupling.m / geometric
     else:
-        coupling.m = coupling.k * math.sqrt(l1 * l2)
+        coupling.m = coupling.k * geometric
     if not -1.0 - 1e-12 <= coupling.k <= 1.0 + 1e-12:
         given = f"k = {coupling.k:.6g}" + ("" if coupling.m is None else
                                            f" (M = {coupling.m:.6g} H)")
@@ -217,7 +230,7 @@ def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]
     members: dict[int, list[str]] = defaultdict(list)
     for node in nodes:
         members[island[index[node]]].append(node)
-    for node in nodes:
+    for node in _reference_candidates(circuit):
         label = island[index[node]]
         if label in seen_islands:
             continue
@@ -255,6 +268,19 @@ def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]
 
     found.extend(_dangling(circuit, stuck_nodes))
     return found, tuple(references)
+
+
+def _reference_candidates(circuit: Circuit):
+    """Nodes in the order they are tried as an isolated part's reference.
+
+    A part's reference is the 'n' terminal of the first element that reaches it (for a
+    transformer: its secondary's n2), so V(p) of that element reads naturally.
+    """
+    for element in circuit.elements.values():
+        nodes = element.nodes
+        order = (nodes[3], nodes[2], nodes[1], nodes[0]) if len(nodes) == 4 else \
+            (nodes[1], nodes[0])
+        yield from order
 
 
 def _first_line(circuit: Circuit, node: str) -> int | None:

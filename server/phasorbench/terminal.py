@@ -6,7 +6,7 @@ exactly the strings of the page and the sheet.
 
 from __future__ import annotations
 
-from .formatting import ELEMENT_COLUMNS, NODE_COLUMNS, eng, element_rows, node_rows
+from .formatting import ELEMENT_COLUMNS, NODE_COLUMNS, ROUND_OFF, eng, element_rows, node_rows
 
 
 def _table(headings: list[str], rows: list[list[str]], right: set[int]) -> list[str]:
@@ -63,12 +63,16 @@ def result_table(result: dict) -> str:
     if groups:
         out.append("")
         heading = ["Group", "Kind", "P", "Q", "|S|", "PF", "V unbalance"]
+        # The element rows' round-off floor, so a balanced resistive bank shows 0 var, not
+        # 177.6 fvar.
+        floor = ROUND_OFF * max([abs(e.get("s_va") or 0.0) for e in
+                                 result["elements"].values()] + [0.0])
         group_rows = []
         for name, g in groups.items():
             vuf = g.get("voltage_unbalance")
             group_rows.append([
-                name, f"{g['kind']} {g['connection']}", eng(g["p_w"], "W"),
-                eng(g["q_var"], "var"), eng(g["s_va"], "VA"),
+                name, f"{g['kind']} {g['connection']}", eng(g["p_w"], "W", floor=floor),
+                eng(g["q_var"], "var", floor=floor), eng(g["s_va"], "VA", floor=floor),
                 f"{g['pf']:.4f} {g['pf_sense']}",
                 "—" if vuf is None else f"{100 * vuf:.3f} %"])
         out += _table(heading, group_rows, {2, 3, 4, 5, 6})

@@ -65,7 +65,7 @@ class ElementReader:
     # -- shared pieces -------------------------------------------------------------
 
     def stream(self, tokens):
-        return TokenStream(tokens, self.parser.lookup)
+        return TokenStream(tokens, self.parser.lookup, self.parser.nesting)
 
     def node(self, stream: TokenStream, what: str = "node") -> str:
         """A node name, ground spelt "0"."""
@@ -131,6 +131,7 @@ class ElementReader:
         name_token, _colon, *rest = line.tokens
         name = name_token.text
         if not rest:
+            self.failed_lines += 1
             raise LanguageError(f"element '{name}' has no kind",
                                 "e.g. R1: resistor a -> b 10 ohm", _colon.start, _colon.end)
         kind_token = rest[0]
@@ -141,8 +142,13 @@ class ElementReader:
             hint = f"did you mean '{close[0]}'?" if close else "kinds: " + ", ".join(ALL_KINDS)
             raise LanguageError(f"'{kind_token.text}' is not an element kind", hint,
                                 kind_token.start, kind_token.end)
-        stream = self.stream(rest[1:])
         self.failed_lines += 1          # undone below when the line reads cleanly
+        if len(rest) == 1:
+            # Point past the kind: an empty stream has no column of its own.
+            raise LanguageError(f"element '{name}' has no terminals",
+                                "e.g. R1: resistor a -> b 10 ohm", kind_token.end,
+                                kind_token.end + 1)
+        stream = self.stream(rest[1:])
         if kind == "coupling":
             self.coupling(name, stream)
         elif kind == "transformer":
@@ -160,7 +166,7 @@ class ElementReader:
         self.check_passive_value(kind, value, span)
         element = Element(name, kind, (p, n), value, self.line.number)
         if kind in ("voltage", "current"):
-            element.value = self.source_phasor(value, options)
+            element.value = self.source_phasor(value, options, span)
             element.frequency = options.get("freq")
             if element.frequency is not None:
                 self.source_frequencies[name] = element.frequency
@@ -187,19 +193,25 @@ class ElementReader:
         self.circuit.elements[name] = element
 
     def check_passive_value(self, kind: str, value: complex, span) -> None:
+        article = "an" if kind == "inductor" else "a"
         if kind in ("resistor", "capacitor", "inductor") and value.imag != 0:
-            raise LanguageError(f"a {kind} value must be real; this one is complex",
+            raise LanguageError(f"{article} {kind} value must be real; this one is complex",
                                 "use 'impedance' for a complex value", *span)
         if kind in ("capacitor", "inductor") and not value.real > 0:
-            raise LanguageError(f"a {kind} value must be greater than zero", 
+            raise LanguageError(f"{article} {kind} value must be greater than zero",
                                 "a zero or negative value has no physical meaning here; "
                                 "remove the element or fix the value", *span)
 
-    def source_phasor(self, value: complex, options: dict) -> complex:
+    def source_phasor(self, value: complex, options: dict, span) -> complex:
         amplitude = options.get("amplitude", self.parser.amplitudes)
         if amplitude != self.parser.amplitudes:
             value = value / math.sqrt(2) if amplitude == "peak" else value * math.sqrt(2)
-        return value * cmath.exp(1j * options.get("phase", 0.0))
+        phasor = value * cmath.exp(1j * options.get("phase", 0.0))
+        # A finite amplitude can still overflow here (1.5e308 V rms in a peak circuit).
+        if not (math.isfinite(phasor.real) and math.isfinite(phasor.imag)):
+            raise LanguageError("the value is not finite", "every value must be a finite "
+                                "number", *span)
+        return phasor
 
     # -- options -------------------------------------------------------------------------
 
@@ -257,17 +269,18 @@ class ElementReader:
         return found
 
     def tolerance(self, stream: TokenStream, option_token) -> float:
-        token = stream.peek()
-        if token is None or token.kind != "number":
+        first = stream.peek()
+        if first is None or stream.at("%"):
             raise stream.fail_here("tol needs a percentage", "e.g. tol 10%")
-        stream.take()
-        value = float(token.text)
+        q = parse_value(stream, "percentage")      # a named value is a value here too
+        span = (first.start, stream.tokens[stream.pos - 1].end)
+        expect_unit(q, None, "tolerance", span, self.line.text[span[0]:span[1]])
         if stream.at("%"):
             stream.take()
-        if not 0 <= value < 100:
+        if q.value.imag != 0 or not 0 <= q.value.real < 100:
             raise LanguageError("a tolerance must be between 0 % and 100 %", "e.g. tol 5%",
-                                token.start, token.end)
-        return value / 100.0
+                                *span)
+        return q.value.real / 100.0
 
     # -- other shapes ----------------------------------------------------------------
 
@@ -299,6 +312,9 @@ class ElementReader:
             raise LanguageError("a turns ratio must be real and not zero", "e.g. ratio 10:1",
                                 *span)
         ratio = values[0].real / (values[1].real if len(values) > 1 else 1.0)
+        if not math.isfinite(ratio) or ratio == 0:
+            raise LanguageError("this turns ratio is out of range (infinite or zero)",
+                                "e.g. ratio 10:1", *span)
         self.circuit.elements[name] = Element(name, "transformer", (p1, n1, p2, n2),
                                               complex(ratio), self.line.number)
 
@@ -323,7 +339,7 @@ class ElementReader:
             raise stream.fail_here(f"unexpected '{stream.peek().text}'",
                                    "a coupling line ends with its k or M value")
         if q.value.imag != 0:
-            raise LanguageError("a coupling value must be real", "", *span)
+            raise LanguageError("a coupling value must be real", "e.g. k 0.95 or M 3 mH", *span)
         by_k = token.text in ("k", "K")
         expect_unit(q, None if by_k else "H", "coupling factor k" if by_k else "mutual "
                     "inductance M", span, raw)
@@ -347,7 +363,8 @@ class ElementReader:
                                        "remove '-> n' or use wye")
             stream.take()
             neutral = self.node(stream, "star point")
-        values = [self.value(stream, kind)[0]]
+        value, first_span = self.value(stream, kind)
+        values = [value]
         while kind == "load3" and stream.at(","):
             stream.take()
             values.append(self.value(stream, kind)[0])
@@ -360,7 +377,7 @@ class ElementReader:
         group_nodes = star if connection == "wye" else None
         if kind == "voltage3":
             magnitude = values[0] / _ROOT3 if options.get("line") else values[0]
-            base = self.source_phasor(magnitude, options)
+            base = self.source_phasor(magnitude, options, first_span)
             step = 1 if options.get("sequence", "abc") == "abc" else -1
             names = []
             for i, phase in enumerate("abc"):
@@ -375,7 +392,9 @@ class ElementReader:
                 names.append(element_name)
         else:
             if any(v == 0 for v in values):
-                raise LanguageError("a load3 impedance cannot be zero", "", 
+                raise LanguageError("a load3 impedance cannot be zero",
+                                    "a short circuit is a line link, not a load; give "
+                                    "each phase a non-zero impedance",
                                     self.line.tokens[0].start, self.line.tokens[-1].end)
             zs = values * 3 if len(values) == 1 else values
             if connection == "wye":

@@ -12,6 +12,7 @@ from __future__ import annotations
 import cmath
 import math
 import re
+from contextlib import contextmanager
 from dataclasses import dataclass
 from typing import Callable
 
@@ -23,7 +24,7 @@ PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "μ": 1e-6
             "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9, "T": 1e12}
 
 # Spellings of every unit the language accepts, mapped to one canonical name.
-UNITS = {"ohm": "ohm", "ohms": "ohm", "Ohm": "ohm", "Ω": "ohm", "Ω": "ohm",
+UNITS = {"ohm": "ohm", "ohms": "ohm", "Ohm": "ohm", "Ω": "ohm", "\u2126": "ohm",
          "F": "F", "H": "H", "S": "S", "V": "V", "A": "A", "Hz": "Hz",
          "W": "W", "var": "var", "VA": "VA",
          "deg": "deg", "°": "deg", "rad": "rad"}
@@ -35,7 +36,9 @@ UNIT_NAMES = {"ohm": "ohms (Ω)", "F": "farads (F)", "H": "henries (H)", "S": "s
 
 _IMAGINARY_WORD = re.compile(r"j((?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)(.*)")
 
-#: Expressions may nest this deep; deeper input is refused rather than overflowing the stack.
+#: Expressions may nest this deep (parentheses, signs, powers and named values used inside
+#: named values, all counted together); deeper input is refused rather than overflowing
+#: Python's stack.
 MAX_DEPTH = 60
 
 
@@ -101,13 +104,18 @@ def imaginary_word(token: Token) -> Quantity | None:
 
 
 class TokenStream:
-    """A cursor over a slice of tokens with helpers for the grammars built on it."""
+    """A cursor over a slice of tokens with helpers for the grammars built on it.
 
-    def __init__(self, tokens: list[Token], lookup: Callable[[Token], Quantity]):
+    ``nesting`` is a one-item list shared by every stream of one reader, so a named value
+    evaluated inside an expression counts its own nesting towards the same limit.
+    """
+
+    def __init__(self, tokens: list[Token], lookup: Callable[[Token], Quantity],
+                 nesting: list[int] | None = None):
         self.tokens = tokens
         self.pos = 0
         self.lookup = lookup
-        self.depth = 0
+        self.nesting = nesting if nesting is not None else [0]
 
     def peek(self, offset: int = 0) -> Token | None:
         i = self.pos + offset
@@ -165,13 +173,29 @@ class TokenStream:
             inner = self.parenthesised()
             unit = None if inner.unit is None else UNKNOWN_UNIT
             return Quantity(cmath.sqrt(inner.value), unit)
-        return self.lookup(token)
+        with self.deeper(token):        # a named value may itself hold an expression
+            return self.lookup(token)
+
+    @contextmanager
+    def deeper(self, token: Token):
+        """One level of nesting (a parenthesis, a sign, a power, a named value) while inside;
+        refuse more than MAX_DEPTH."""
+        if self.nesting[0] >= MAX_DEPTH:
+            raise LanguageError("expression nested too deeply",
+                                f"write it with at most {MAX_DEPTH} levels of parentheses, "
+                                "signs, powers and named values", token.start, token.end)
+        self.nesting[0] += 1
+        try:
+            yield
+        finally:
+            self.nesting[0] -= 1
 
     def parenthesised(self) -> Quantity:
         opening = self.take()
-        self.depth += 1
-        if self.depth > MAX_DEPTH:
-            raise LanguageError("expression nested too deeply", "", opening.start, opening.end)
+        with self.deeper(opening):
+            return self._parenthesised(opening)
+
+    def _parenthesised(self, opening: Token) -> Quantity:
         if self.at(")"):
             raise LanguageError("empty parentheses", "put an expression inside ( )",
                                 opening.start, self.peek().end)
@@ -183,19 +207,19 @@ class TokenStream:
             raise self.fail_here(f"unexpected '{self.peek().text}' in the expression",
                                  "expressions allow numbers, names, + - * / ^, ( ), pi, sqrt, j")
         self.take()
-        self.depth -= 1
         return result
 
     # -- expressions (inside parentheses) -----------------------------------------
 
     def expression(self) -> Quantity:
+        first = self.peek()
         left = self.product()
         while self.at("+", "-"):
             op = self.take().text
             right = self.product()
             value = left.value + right.value if op == "+" else left.value - right.value
             left = Quantity(value, left.unit if left.unit == right.unit else UNKNOWN_UNIT)
-        return _finite(left, self)
+        return _finite(left, first, self.peek(-1))
 
     def product(self) -> Quantity:
         left = self.power()
@@ -212,19 +236,24 @@ class TokenStream:
         return left
 
     def power(self) -> Quantity:
+        # A sign or a power recurses like a parenthesis, so it counts towards MAX_DEPTH:
+        # a long chain ('------1', '2^2^2^...') must end in a message, not a RecursionError.
         if self.at("-", "+"):
-            sign = -1 if self.take().text == "-" else 1
-            inner = self.power()
-            return Quantity(sign * inner.value, inner.unit)
+            sign_token = self.take()
+            with self.deeper(sign_token):
+                inner = self.power()
+            return Quantity((-1 if sign_token.text == "-" else 1) * inner.value, inner.unit)
         base = self.atom()
         if self.at("^"):
             op_token = self.take()
-            exponent = self.power()
+            with self.deeper(op_token):
+                exponent = self.power()
             try:
                 value = base.value ** exponent.value
             except (ZeroDivisionError, OverflowError):
                 raise LanguageError("this power cannot be computed (zero to a negative "
-                                    "power, or too large)", "", op_token.start, op_token.end)
+                                    "power, or too large)", "check the base and the exponent",
+                                    op_token.start, op_token.end)
             unit = None if base.unit is None and exponent.unit is None else UNKNOWN_UNIT
             return Quantity(value, unit)
         return base
@@ -259,9 +288,10 @@ def _quotient_unit(a: str | None, b: str | None) -> str | None:
     return UNKNOWN_UNIT
 
 
-def _finite(quantity: Quantity, stream: TokenStream) -> Quantity:
+def _finite(quantity: Quantity, first: Token, last: Token) -> Quantity:
+    """The expression from ``first`` to ``last`` must not have overflowed."""
     v = quantity.value
     if not (math.isfinite(v.real) and math.isfinite(v.imag)):
         raise LanguageError("the value is not finite", "every value must be a finite number",
-                            stream.tokens[0].start if stream.tokens else 0, stream.end_column())
+                            first.start, last.end)
     return quantity

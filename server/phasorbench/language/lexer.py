@@ -2,7 +2,8 @@
 
 Every later stage reports errors by pointing at a token, so each token keeps its
 start and end column and whether it touches the token before it (``4.7k`` is the
-number ``4.7`` glued to the word ``k``; ``4.7 k`` is not glued).
+number ``4.7`` glued to the word ``k``; ``4.7 k`` is not glued). The degree sign is a
+word of its own, so a unit may follow it directly (``10∠36.87°Ω``).
 """
 
 from __future__ import annotations
@@ -18,7 +19,7 @@ _TOKEN = re.compile(
   | (?P<comment>\#.*)
   | (?P<arrow>->|→)
   | (?P<number>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)
-  | (?P<word>j(?:\d+\.?\d*|\.\d+)[eE][+-]?\d+(?:[^\W\d][\w.]*)?|[^\W\d][\w.]*|[µΩ°][\w.]*)
+  | (?P<word>j(?:\d+\.?\d*|\.\d+)[eE][+-]?\d+(?:[^\W\d][\w.]*)?|[^\W\d][\w.]*|[µΩ][\w.]*|°)
   | (?P<punct>[:=,@∠%()+\-*/^])
   | (?P<other>.)
     """,

@@ -13,7 +13,7 @@ import difflib
 import math
 import re
 
-from ..errors import CircuitSyntaxError, Diagnostic
+from ..errors import CircuitSyntaxError, Diagnostic, source_lines
 from ..model import Circuit
 from .elements import SIMPLE_ELEMENT, ElementReader
 from .expressions import LanguageError, Quantity, TokenStream
@@ -21,6 +21,8 @@ from .lexer import Token, tokenize
 from .values import expect_unit, parse_value
 
 NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
+#: A named value spelt like this would be read as an imaginary number (j5 is 5j) where used.
+IMAGINARY_NAME = re.compile(r"j\d")
 DIRECTIVES = ("title", "frequency", "amplitudes")
 #: A file larger than this many lines is refused before any work (a guard for pasted junk).
 MAX_LINES = 400_000
@@ -52,11 +54,15 @@ class CircuitParser:
         self.values: dict[str, Quantity] = {}
         self.failed_values: set[str] = set()
         self.evaluating: list[str] = []
+        #: Nesting depth shared by every expression stream (see TokenStream).
+        self.nesting = [0]
         self.defined_at: dict[str, int] = {}
         self.title: str | None = None
         self.frequency: float | None = None
         self.amplitudes = "rms"
         self.directive_lines: dict[str, int] = {}
+        #: Element lines dropped for a bad name: the file has elements, just not readable.
+        self.unread_elements = 0
 
     # -- diagnostics ------------------------------------------------------------------
 
@@ -96,17 +102,20 @@ class CircuitParser:
         line = self.assignments[name]
         self.evaluating.append(name)
         try:
-            stream = TokenStream(line.tokens[2:], self.lookup)
+            stream = TokenStream(line.tokens[2:], self.lookup, self.nesting)
             quantity = parse_value(stream, "value")
             if stream.peek() is not None:
                 tok = stream.peek()
                 raise LanguageError(f"unexpected '{tok.text}' after the value",
                                     "a named value line is NAME = VALUE", tok.start, tok.end)
         except LanguageError as exc:
-            if len(self.evaluating) == 1:
-                self.language_error(line, exc)
-                self.failed_values.add(name)
-                raise _Poisoned(name)
+            # The innermost named value being read owns the error's columns: report it on
+            # its own line (once), and let every value built on it fail quietly.
+            self.language_error(line, exc)
+            self.failed_values.add(name)
+            raise _Poisoned(name) from None
+        except _Poisoned:
+            self.failed_values.add(name)
             raise
         finally:
             self.evaluating.pop()
@@ -118,7 +127,7 @@ class CircuitParser:
     def classify(self) -> list[_Line]:
         lines = []
         simple = SIMPLE_ELEMENT.match
-        for number, raw in enumerate(self.text.splitlines(), start=1):
+        for number, raw in enumerate(source_lines(self.text), start=1):
             match = simple(raw)
             if match is not None:
                 # The common shape 'NAME: KIND p -> n NUMBER[UNIT]' skips the tokenizer;
@@ -128,9 +137,13 @@ class CircuitParser:
                 start, end = match.span(1)
                 if self.check_name(line, Token("word", match.group(1), start, end, False)):
                     lines.append(line)
+                else:
+                    self.unread_elements += 1
                 continue
             tokens, _comment = tokenize(raw)
             if not tokens:
+                continue
+            if self.bad_first_word(number, raw, tokens):
                 continue
             first = tokens[0]
             second = tokens[1] if len(tokens) > 1 else None
@@ -143,11 +156,39 @@ class CircuitParser:
             line = _Line(number, raw, tokens, kind)
             if kind in ("element", "assignment"):
                 if not self.check_name(line, first):
+                    if kind == "element":
+                        self.unread_elements += 1
                     continue
                 if kind == "assignment":
+                    if IMAGINARY_NAME.match(first.text):
+                        self.error(number, f"'{first.text}' reads as an imaginary number and "
+                                   "cannot be a named value", "choose a name that does not "
+                                   "start with j and a digit", first.start, first.end)
+                        continue
                     self.assignments[first.text] = line
             lines.append(line)
         return lines
+
+    def bad_first_word(self, number: int, raw: str, tokens: list[Token]) -> bool:
+        """Report a line whose first word ends in ':' or '=' but is no valid name ('R-1:').
+
+        The tokenizer splits such a word ('R', '-', '1'); read as one word, the line is an
+        element or an assignment with a misspelt name, not an unknown directive.
+        """
+        for i, token in enumerate(tokens[1:], start=1):
+            if not token.glued and not (token.kind == "punct" and token.text in ":="):
+                return False
+            if token.kind == "punct" and token.text in ":=":
+                if i == 1:
+                    return False
+                start, end = tokens[0].start, tokens[i - 1].end
+                self.error(number, f"'{raw[start:end]}' is not a valid name",
+                           "a name is letters, digits and _, starting with a letter",
+                           start, end)
+                if token.text == ":":
+                    self.unread_elements += 1
+                return True
+        return False
 
     def check_name(self, line: _Line, token: Token) -> bool:
         name = token.text
@@ -198,7 +239,7 @@ class CircuitParser:
 
     def read_frequency(self, line: _Line, rest: list[Token], first: Token) -> float | None:
         try:
-            stream = TokenStream(rest, self.lookup)
+            stream = TokenStream(rest, self.lookup, self.nesting)
             q = parse_value(stream, "frequency")
             if stream.peek() is not None:
                 tok = stream.peek()
@@ -281,16 +322,23 @@ class CircuitParser:
                        "and a load, e.g.  frequency 50 Hz / V1: voltage a -> 0 230 V / "
                        "R1: resistor a -> 0 10 ohm")
             return
-        if not circuit.elements and not reader.failed_lines:
+        unread = reader.failed_lines + self.unread_elements
+        if not circuit.elements and not unread:
             self.error(None, "the circuit has no elements (nothing to solve)",
                        "add elements as NAME: KIND p -> n VALUE")
         freqs = reader.source_frequencies
         if self.frequency is None and "frequency" not in self.directive_lines:
-            if freqs and len(set(freqs.values())) == 1 and \
-                    all(e.frequency is not None for e in circuit.elements.values()
-                        if e.kind in ("voltage", "current")):
+            every_source = all(e.frequency is not None for e in circuit.elements.values()
+                               if e.kind in ("voltage", "current"))
+            if freqs and len(set(freqs.values())) == 1 and every_source:
                 circuit.frequency = next(iter(freqs.values()))
-            elif circuit.elements or reader.failed_lines:
+            elif freqs and every_source:
+                shown = ", ".join(f"{n} {f:g} Hz" for n, f in freqs.items())
+                self.error(None, f"the sources run at different frequencies ({shown}) and "
+                           "there is no 'frequency' line",
+                           "this version solves one frequency at a time: solve each "
+                           "frequency in its own file and add the results (superposition)")
+            elif circuit.elements or unread:
                 self.error(None, "no analysis frequency: add a 'frequency' line",
                            "e.g. frequency 50 Hz (or give every source its own freq)")
         elif self.frequency is not None:

@@ -56,12 +56,13 @@ def expect_unit(quantity: Quantity, expected: str | None, kind: str, span: tuple
     if unit is None or unit == UNKNOWN_UNIT or unit == expected:
         return
     article = "an" if kind[:1] in "aeiou" else "a"
+    # The language's own wording: "a capacitor takes farads (F); '150 uH' is in henries".
+    given = UNIT_NAMES[unit].split(" (")[0]
     if expected is None:
-        raise LanguageError(f"{article} {kind} value takes no unit; '{raw}' is in "
-                            f"{UNIT_NAMES[unit]}", "write the plain number", *span)
+        raise LanguageError(f"{article} {kind} value takes no unit; '{raw}' is in {given}",
+                            "write the plain number", *span)
     raise LanguageError(f"{article} {kind} takes {UNIT_NAMES[expected]}; '{raw}' is in "
-                        f"{UNIT_NAMES[unit]}", f"write the value in {UNIT_NAMES[expected]}",
-                        *span)
+                        f"{given}", f"write the value in {UNIT_NAMES[expected]}", *span)
 
 
 def _is_option(token) -> bool:
@@ -70,6 +71,7 @@ def _is_option(token) -> bool:
 
 def _rectangular(stream: TokenStream) -> Quantity:
     terms: list[tuple[complex, str | None, bool]] = []   # value, unit, unit given apart
+    first = stream.peek()
     sign = 1
     if stream.at("+", "-"):
         sign = -1 if stream.take().text == "-" else 1
@@ -96,8 +98,9 @@ def _rectangular(stream: TokenStream) -> Quantity:
         return Quantity(total, unit)
     units = {u for _, u, _ in terms if u is not None}
     if len(units) > 1:
-        raise stream.fail_here("the parts of this value carry different units",
-                               "give one unit for the whole value")
+        raise LanguageError("the parts of this value carry different units",
+                            "give one unit for the whole value", first.start,
+                            stream.peek(-1).end)
     return Quantity(sum(v for v, _, _ in terms), units.pop() if units else None)
 
 
@@ -170,8 +173,10 @@ def _angle(stream: TokenStream) -> float:
         raise LanguageError(f"an angle takes deg, ° or rad, not {UNIT_NAMES[unit]}",
                             "write e.g. 36.87 deg", first.start, stream.peek(-1).end)
     if abs(q.value.imag) > 0:
-        raise LanguageError("an angle must be real", "", first.start, stream.peek(-1).end)
+        raise LanguageError("an angle must be real", "write e.g. 36.87 deg",
+                            first.start, stream.peek(-1).end)
     angle = sign * q.value.real
     if not math.isfinite(angle):
-        raise LanguageError("the angle is not finite", "", first.start, stream.peek(-1).end)
+        raise LanguageError("the angle is not finite", "every value must be a finite number",
+                            first.start, stream.peek(-1).end)
     return angle if unit == "rad" else math.radians(angle)
