@@ -13,6 +13,7 @@ import math
 
 import numpy as np
 
+from .errors import AnalysisError, Diagnostic
 from .model import CONTROLLED_KINDS, SOURCE_KINDS
 from .solver import Solution
 
@@ -55,6 +56,15 @@ def power_factor(p: float, q: float, s: float, source: bool) -> tuple[float, str
 
 
 def contract(solution: Solution) -> dict:
+    """The contract dict of a solved circuit (see ``_contract``); never holds NaN or inf.
+
+    Raises ``AnalysisError`` when a power overflows double precision.
+    """
+    with np.errstate(all="ignore"):
+        return _contract(solution)
+
+
+def _contract(solution: Solution) -> dict:
     """The contract dict of a solved circuit.
 
     >>> from phasorbench.workflow import read_circuit
@@ -72,6 +82,11 @@ def contract(solution: Solution) -> dict:
         if e.kind == "transformer":
             v2, i2 = solution.secondary[e.name]
             power[k] += half * v2 * np.conj(i2)
+    if not np.all(np.isfinite(power)):
+        bad = [solution.names[k] for k in np.flatnonzero(~np.isfinite(power))[:6]]
+        raise AnalysisError([Diagnostic(
+            f"the power of {', '.join(bad)} exceeds the range of double-precision numbers",
+            "check the values and units of the circuit")])
     p_list, q_list = power.real.tolist(), power.imag.tolist()
     s_list = np.abs(power).tolist()
     z = _impedances(elements, v, i, circuit)
@@ -103,6 +118,10 @@ def contract(solution: Solution) -> dict:
 
     total = complex(power.sum()) if len(power) else 0j
     apparent = float(np.abs(power).sum())
+    if not (math.isfinite(abs(total)) and math.isfinite(apparent)):
+        raise AnalysisError([Diagnostic(
+            "the total power exceeds the range of double-precision numbers",
+            "check the values and units of the circuit")])
     relative = abs(total) / apparent if apparent > 0 else 0.0
     node_names = list(solution.node_voltages)
     node_dicts = phasor_dicts(np.array(list(solution.node_voltages.values()), dtype=complex))
@@ -130,22 +149,25 @@ def contract(solution: Solution) -> dict:
 
 
 def _impedances(elements, v: np.ndarray, i: np.ndarray, circuit) -> np.ndarray:
-    """The element's own impedance: exact from its value, V/I where coupling changes it."""
+    """The element's own impedance: exact from its value, V/I where coupling changes it.
+
+    Infinite or undefined impedances (an open admittance, a current of zero) are NaN
+    here and null in the contract.
+    """
     omega = 2 * math.pi * circuit.frequency
     coupled = {name for c in circuit.couplings.values() for name in c.inductors}
-    with np.errstate(divide="ignore", invalid="ignore"):
-        z = np.where(i != 0, v / np.where(i != 0, i, 1), np.nan)
-    for k, e in enumerate(elements):
-        if e.name in coupled:
-            continue
-        if e.kind in ("resistor", "impedance"):
-            z[k] = e.value
-        elif e.kind == "capacitor":
-            z[k] = 1 / (1j * omega * e.value)
-        elif e.kind == "inductor":
-            z[k] = 1j * omega * e.value
-        elif e.kind == "admittance":
-            z[k] = 1 / e.value if e.value != 0 else np.nan
+    kinds = np.array([e.kind for e in elements], dtype=object)
+    values = np.array([e.value for e in elements], dtype=complex)
+    free = np.array([e.name not in coupled for e in elements], dtype=bool)
+    z = np.where(i != 0, v / np.where(i != 0, i, 1), np.nan)
+    by_value = free & ((kinds == "resistor") | (kinds == "impedance"))
+    z[by_value] = values[by_value]
+    cap = free & (kinds == "capacitor")
+    z[cap] = 1 / (1j * omega * values[cap])
+    ind = free & (kinds == "inductor")
+    z[ind] = 1j * omega * values[ind]
+    adm = free & (kinds == "admittance")
+    z[adm] = np.where(values[adm] != 0, 1 / np.where(values[adm] != 0, values[adm], 1), np.nan)
     return z
 
 

@@ -90,13 +90,41 @@ def _admittance(kind: str, value: complex, omega: float) -> complex:
 def solve(circuit: Circuit) -> Solution:
     """Solve ``circuit`` (already through ``checks.check_structure``) at its frequency.
 
-    Raises ``AnalysisError`` when the equations are singular, naming what is undetermined.
+    Raises ``AnalysisError`` when the equations are singular, naming what is undetermined,
+    or when values are so extreme that double precision overflows.
 
     >>> from phasorbench.workflow import read_circuit
     >>> c = read_circuit("frequency 50 Hz\\nV1: voltage a -> 0 10 V\\nR1: resistor a -> 0 5")
     >>> solve(c).current[1]
     (2+0j)
     """
+    # Overflow and division by zero are checked explicitly below (names the element), so
+    # numpy's floating-point warnings would only duplicate them.
+    try:
+        with np.errstate(all="ignore"):
+            solution = _solve(circuit)
+    except (ZeroDivisionError, OverflowError):
+        raise AnalysisError([Diagnostic(
+            f"a value of the circuit is out of range at {circuit.frequency:g} Hz "
+            "(a division by zero or an overflow)", "check the values and units: values "
+            "this extreme cannot be solved in double precision")]) from None
+    _require_finite(solution)
+    return solution
+
+
+def _require_finite(solution: "Solution") -> None:
+    bad = ~(np.isfinite(solution.voltage) & np.isfinite(solution.current))
+    secondary_bad = [name for name, (v, i) in solution.secondary.items()
+                     if not (np.isfinite(v) and np.isfinite(i))]
+    if bad.any() or secondary_bad:
+        names = [solution.names[k] for k in np.flatnonzero(bad)[:6]] + secondary_bad[:6]
+        raise AnalysisError([Diagnostic(
+            f"the results of {', '.join(names)} exceed the range of double-precision "
+            "numbers", "check the values and units of the circuit: results above about "
+            "1e308 cannot be represented")])
+
+
+def _solve(circuit: Circuit) -> Solution:
     omega = 2.0 * math.pi * circuit.frequency
     elements = list(circuit.elements.values())
     count = len(elements)
@@ -138,6 +166,12 @@ def solve(circuit: Circuit) -> Solution:
     nodal_mask = (codes <= _KIND_CODE["admittance"]) & ~branch_mask
     nodal_rows = np.flatnonzero(nodal_mask)
     y = _admittances(codes[nodal_rows], values[nodal_rows], omega)
+    if not np.all(np.isfinite(y)):
+        bad = [names[k] for k in nodal_rows[~np.isfinite(y)][:6].tolist()]
+        raise AnalysisError([Diagnostic(
+            f"the admittance of {', '.join(bad)} at {circuit.frequency:g} Hz is out of "
+            "range (infinite or not a number)", "check the values and units: a value "
+            "this extreme cannot be solved in double precision")])
     p, n = p_all[nodal_rows], n_all[nodal_rows]
     A.add(np.concatenate([p, n, p, n]), np.concatenate([p, n, n, p]),
           np.concatenate([y, y, -y, -y]))

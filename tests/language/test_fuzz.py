@@ -243,17 +243,8 @@ def test_pathological_inputs(text):
 
 
 # Finite values the language must accept (circuit-language.md: every value must be
-# finite, and these are) but whose products overflow a float inside the solver. Each case
-# fails today in solver.py/results.py, outside the language: numpy overflow warnings
-# escape (an error under this suite's filterwarnings), a ZeroDivisionError escapes from
-# results._impedances, or infinity reaches the contract dict (and the command line's JSON
-# then stops with an internal error). Reported to the lead; strict, so a fix shows up as
-# XPASS and the marker must go.
-SOLVER_OVERFLOW = pytest.mark.xfail(strict=True, reason="solver/results overflow on extreme "
-                                    "finite values (reported; not a language bug)")
-
-
-@SOLVER_OVERFLOW
+# finite, and these are) whose products overflow a float inside the solver: they must be
+# solved or refused with a clean CircuitError, never a traceback or infinity in the JSON.
 @pytest.mark.parametrize("text", [
     "frequency 50\nV: voltage a -> 0 230\nC: capacitor a -> 0 1e308\nR: resistor a -> 0 1\n",
     "frequency 50\nV: voltage a -> 0 1e308\nR: resistor a -> 0 1\n",
