@@ -336,3 +336,16 @@ def test_reserved_and_imaginary_looking_names_are_refused():
         parse_circuit(text)
     assert [(e.line, e.column) for e in caught.value.errors] == [(2, 1), (3, 1), (4, 1)]
     assert "imaginary" in caught.value.errors[1].message
+
+
+@pytest.mark.parametrize("spelling, expected", [
+    ("8 + j-5 ohm", 8 - 5j),      # a sign glued after j belongs to j's number
+    ("8+j-5", 8 - 5j),
+    ("j-2.5k", -2500j),
+    ("8 + j -5", 3 + 1j),         # spaced apart it is plain arithmetic: 8 + j - 5
+])
+def test_sign_glued_after_j(spelling, expected):
+    # formula: j·(-5) = -5j; circuit-language.md lets a unit end the value
+    from phasorbench.language.parser import parse_circuit
+    circuit = parse_circuit(f"frequency 50\nZ: impedance a -> 0 {spelling}")
+    assert circuit.elements["Z"].value == pytest.approx(expected)

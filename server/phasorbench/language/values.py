@@ -111,6 +111,13 @@ def _term(stream: TokenStream) -> tuple[complex, str | None]:
                                "the trailing + or -")
     if token.kind == "number":
         q = stream.number()
+    elif token.kind == "word" and token.text == "j" and _signed_after(stream):
+        # 'j-5' (a sign glued between j and its number) means j·(-5), as engineers write
+        # '8 + j-5 ohm' for 8 - j5; read it so, rather than as 8 + j - 5.
+        stream.take()
+        sign = -1 if stream.take().text == "-" else 1
+        value, unit = _term(stream)
+        return 1j * sign * value, unit
     elif token.kind == "word":
         q = stream.word_atom()
     elif stream.at("("):
@@ -119,6 +126,13 @@ def _term(stream: TokenStream) -> tuple[complex, str | None]:
         raise stream.fail_here(f"'{token.text}' is not a value",
                                "write a number, e.g. 4.7k, 150 uF, 8.2 + j5.1, 10∠30°")
     return q.value, q.unit
+
+
+def _signed_after(stream: TokenStream) -> bool:
+    """A sign glued right after the current 'j' and a number glued right after the sign."""
+    sign, after = stream.peek(1), stream.peek(2)
+    return (sign is not None and after is not None and sign.glued and after.glued
+            and sign.kind == "punct" and sign.text in "+-" and after.kind == "number")
 
 
 def _unit_word(stream: TokenStream):
