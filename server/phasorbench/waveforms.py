@@ -145,8 +145,24 @@ def sample_element(result: dict, name: str, periods: float = 2,
     s = (k * k / 2.0) * voltage * current.conjugate()
     p_avg, q, s_va = s.real, s.imag, abs(s)
     returned = returned_energy(p_avg, s_va, f)
+    p_max, p_min = p_avg + s_va, p_avg - s_va
     phase = math.degrees(math.atan2(voltage.imag, voltage.real)
                          + math.atan2(current.imag, current.real))
+    components = [h for h in result.get("harmonics") or () if name in h.get("elements", {})]
+    if components:
+        # Sources at other frequencies add their own v and i (superposition.py); p(t) is
+        # then no longer one sinusoid at 2f, so its extremes and the returned energy are
+        # read from the samples, and the mean is the sum of the per-frequency powers.
+        for h in components:
+            hv = _complex(h["elements"][name].get("voltage"))
+            hi = _complex(h["elements"][name].get("current"))
+            dv, di, _ = instantaneous(hv, hi, h["frequency_hz"], amplitudes, t)
+            v, i = v + dv, i + di
+            p_avg += h["elements"][name]["p_w"]
+        p = v * i
+        p_max, p_min = float(p.max()), float(p.min())
+        one = t <= period * (1 + 1e-12)
+        returned = float(np.trapezoid(np.maximum(0.0, -p[one]), t[one]))
     return {
         "element": name,
         "kind": el.get("kind"),
@@ -163,10 +179,11 @@ def sample_element(result: dict, name: str, periods: float = 2,
         "p_avg": _finite(p_avg),
         "q_var": _finite(q),
         "s_va": _finite(s_va),
-        "p_max": _finite(p_avg + s_va),
-        "p_min": _finite(p_avg - s_va),
+        "p_max": _finite(p_max),
+        "p_min": _finite(p_min),
         "p_phase_deg": _finite(phase),
         "returned_energy_j": _finite(returned),
         "absorbed_energy_j": _finite(returned + p_avg * period),
+        "harmonics_hz": [h["frequency_hz"] for h in components],
         "units": {"t_s": "s", "v": "V", "i": "A", "p": "W", "energy": "J"},
     }

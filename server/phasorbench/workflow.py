@@ -40,8 +40,20 @@ def solve_text(text: str, filename: str = "<circuit>") -> dict:
     >>> round(r["elements"]["R1"]["p_w"], 9)
     20.0
     """
+    circuit = read_circuit(text, filename)
+    return solve_circuit(circuit)
+
+
+def solve_circuit(circuit: Circuit) -> dict:
+    """The contract dict of an already read circuit.
+
+    Sources at several frequencies are solved one frequency at a time and added
+    (``superposition.py``); the top level then shows the analysis frequency.
+    """
     from .results import contract
     from .solver import solve
+    from .superposition import solve_superposed, source_frequencies
 
-    circuit = read_circuit(text, filename)
+    if len(source_frequencies(circuit)) > 1:
+        return solve_superposed(circuit)
     return contract(solve(circuit))

@@ -162,14 +162,15 @@ def test_every_source_with_its_own_freq_needs_no_frequency_line():
     assert error.line is None and "frequency" in error.message
 
 
-def test_sources_at_different_frequencies_are_refused_clearly():
-    # circuit-language.md allows several frequencies; this version solves one at a time
-    # and must say so rather than solve at a wrong frequency
-    [error] = errors_of("V1: voltage a -> 0 1 freq 50\nV2: voltage b -> 0 1 freq 60\n"
-                        "R1: resistor a -> b 1\n")
-    assert error.line is None and "V1 50 Hz, V2 60 Hz" in error.message
-    [error] = errors_of("frequency 50\nV1: voltage a -> 0 1 freq 60\nR1: resistor a -> 0 1")
-    assert error.line == 2 and "60 Hz" in error.message and "50 Hz" in error.message
+def test_sources_at_different_frequencies_take_the_lowest_as_analysis_frequency():
+    # circuit-language.md: freq is a source's own frequency, for several frequencies at
+    # once; with no 'frequency' line the lowest is the one the tables show
+    c = parse_circuit("V1: voltage a -> 0 1 freq 60\nV2: voltage b -> 0 1 freq 50\n"
+                      "R1: resistor a -> b 1\n")
+    assert c.frequency == 50.0
+    assert (c.elements["V1"].frequency, c.elements["V2"].frequency) == (60.0, 50.0)
+    c = parse_circuit("frequency 50\nV1: voltage a -> 0 1 freq 60\nR1: resistor a -> 0 1")
+    assert c.frequency == 50.0 and c.elements["V1"].frequency == 60.0
 
 
 # --- names -----------------------------------------------------------------------------

@@ -10,7 +10,6 @@ except ``CircuitSyntaxError`` holding all of them.
 from __future__ import annotations
 
 import difflib
-import math
 import re
 
 from ..errors import CircuitSyntaxError, Diagnostic, source_lines
@@ -330,28 +329,15 @@ class CircuitParser:
         if self.frequency is None and "frequency" not in self.directive_lines:
             every_source = all(e.frequency is not None for e in circuit.elements.values()
                                if e.kind in ("voltage", "current"))
-            if freqs and len(set(freqs.values())) == 1 and every_source:
-                circuit.frequency = next(iter(freqs.values()))
-            elif freqs and every_source:
-                shown = ", ".join(f"{n} {f:g} Hz" for n, f in freqs.items())
-                self.error(None, f"the sources run at different frequencies ({shown}) and "
-                           "there is no 'frequency' line",
-                           "this version solves one frequency at a time: solve each "
-                           "frequency in its own file and add the results (superposition)")
+            if freqs and every_source:
+                # Several source frequencies are solved one by one and added
+                # (superposition.py); the lowest is the analysis frequency.
+                circuit.frequency = min(freqs.values())
             elif circuit.elements or unread:
                 self.error(None, "no analysis frequency: add a 'frequency' line",
                            "e.g. frequency 50 Hz (or give every source its own freq)")
         elif self.frequency is not None:
             circuit.frequency = self.frequency
-        if circuit.frequency and freqs:
-            other = {n: f for n, f in freqs.items()
-                     if not math.isclose(f, circuit.frequency, rel_tol=1e-12)}
-            for name, f in other.items():
-                element = circuit.elements[name]
-                self.error(element.line, f"source {name} runs at {f:g} Hz but the circuit is "
-                           f"solved at {circuit.frequency:g} Hz",
-                           "this version solves one frequency at a time: solve each "
-                           "frequency in its own file and add the results (superposition)")
 
 
 def parse_circuit(text: str, filename: str = "<circuit>", *, strict: bool = True):
