@@ -162,8 +162,12 @@ class _Forest:
 def _voltage_loops(circuit: Circuit) -> list[Diagnostic]:
     found = []
     forest = _Forest()
+    transformers = []
     for element in circuit.elements.values():
-        if element.kind in VOLTAGE_KINDS or is_short(element):
+        kind = element.kind
+        if kind == "transformer":
+            transformers.append(element)
+        elif kind in VOLTAGE_KINDS or (kind in ("resistor", "impedance") and is_short(element)):
             p, n = element.nodes
             if forest.joined(p, n):
                 members = forest.path(p, n)[::-1] + [element.name]
@@ -177,9 +181,7 @@ def _voltage_loops(circuit: Circuit) -> list[Diagnostic]:
                     element.line, 1, len(element.name)))
             else:
                 forest.join(p, n, element.name)
-    for element in circuit.elements.values():
-        if element.kind != "transformer":
-            continue
+    for element in transformers:
         p1, n1, p2, n2 = element.nodes
         if not forest.joined(p1, n1):
             forest.join(p1, n1, element.name)
@@ -195,22 +197,42 @@ def _voltage_loops(circuit: Circuit) -> list[Diagnostic]:
     return found
 
 
-def _components(index: dict[str, int], pairs: list[tuple[str, str]]) -> np.ndarray:
-    """Connected-component label of every node (scipy's csgraph keeps this fast on big meshes)."""
-    size = len(index)
-    if pairs:
-        rows = np.fromiter((index[a] for a, _ in pairs), dtype=np.int64, count=len(pairs))
-        cols = np.fromiter((index[b] for _, b in pairs), dtype=np.int64, count=len(pairs))
-    else:
-        rows = cols = np.zeros(0, dtype=np.int64)
-    graph = coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(size, size))
-    return connected_components(graph, directed=False)[1]
+class _Terminals:
+    """Every branch (a two-terminal element, or one transformer winding) as node indices.
 
+    Built once per check so the graph questions below are array operations, which keeps
+    the checks fast on circuits of tens of thousands of elements.
+    """
 
-def _winding_pairs(element: Element) -> list[tuple[str, str]]:
-    if element.kind == "transformer":
-        return [element.nodes[0:2], element.nodes[2:4]]
-    return [element.nodes]
+    def __init__(self, circuit: Circuit):
+        self.nodes = circuit.nodes()
+        self.index = dict(zip(self.nodes, range(len(self.nodes))))
+        elements = list(circuit.elements.values())
+        self.elements = elements
+        owner, first, second = [], [], []
+        for k, e in enumerate(elements):
+            nodes = e.nodes
+            owner.append(k)
+            first.append(nodes[0])
+            second.append(nodes[1])
+            if len(nodes) == 4:
+                owner.append(k)
+                first.append(nodes[2])
+                second.append(nodes[3])
+        get = self.index.__getitem__
+        self.owner = np.array(owner, dtype=np.int64)
+        self.p = np.fromiter(map(get, first), np.int64, len(first))
+        self.n = np.fromiter(map(get, second), np.int64, len(second))
+        current_type = np.array([e.kind in CURRENT_KINDS or is_open(e) for e in elements],
+                                dtype=bool)
+        self.current_type = current_type[self.owner] if len(elements) else current_type
+
+    def components(self, mask=None) -> np.ndarray:
+        """Connected-component label of every node, using the branches where ``mask``."""
+        p, n = (self.p, self.n) if mask is None else (self.p[mask], self.n[mask])
+        size = len(self.nodes)
+        graph = coo_matrix((np.ones(len(p)), (p, n)), shape=(size, size))
+        return connected_components(graph, directed=False)[1]
 
 
 def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]:
@@ -219,39 +241,18 @@ def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]
     Returns the diagnostics and the extra reference nodes (one per isolated part).
     """
     found = _voltage_loops(circuit)
-    nodes = circuit.nodes()
-    index = {node: i for i, node in enumerate(nodes)}
-    elements = circuit.elements.values()
-    all_pairs = [pair for e in elements for pair in _winding_pairs(e)]
-    island = _components(index, all_pairs)
-
+    table = _Terminals(circuit)
+    nodes, elements = table.nodes, table.elements
+    island = table.components()
     references: list[str] = []
-    seen_islands = {island[0]}
-    members: dict[int, list[str]] = defaultdict(list)
-    for node in nodes:
-        members[island[index[node]]].append(node)
-    for node in _reference_candidates(circuit):
-        label = island[index[node]]
-        if label in seen_islands:
-            continue
-        seen_islands.add(label)
-        references.append(node)
-        part = members[label]
-        shown = ", ".join(part[:6]) + (", …" if len(part) > 6 else "")
-        found.append(Diagnostic(
-            f"nodes {shown} have no conductive path to ground: node '{node}' is taken as "
-            "their reference", "currents and powers there are exact; node voltages there "
-            "are relative to that node (connect the part to ground to fix it)",
-            _first_line(circuit, node), 1, 1, "warning"))
+    if len(set(island.tolist())) > 1:
+        references = _island_references(circuit, table, island, found)
 
-    conductive = [pair for e in elements if e.kind not in CURRENT_KINDS and not is_open(e)
-                  for pair in _winding_pairs(e)]
-    cut = _components(index, conductive)
-    anchored = {cut[index[GROUND]]} | {cut[index[r]] for r in references}
+    cut = table.components(~table.current_type)
+    anchored = {cut[table.index[GROUND]]} | {cut[table.index[r]] for r in references}
     stranded: dict[int, list[str]] = defaultdict(list)
-    for node in nodes:
-        if cut[index[node]] not in anchored:
-            stranded[cut[index[node]]].append(node)
+    for k in np.flatnonzero(~np.isin(cut, list(anchored))).tolist():
+        stranded[cut[k]].append(nodes[k])
     stuck_nodes = set()
     for group in stranded.values():
         stuck_nodes.update(group)
@@ -266,46 +267,53 @@ def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]
             "add a path that fixes the voltage there (an impedance to ground, say), or check "
             "the connections", line or None, 1 if line else None, 1))
 
-    found.extend(_dangling(circuit, stuck_nodes))
+    found.extend(_dangling(table, stuck_nodes))
     return found, tuple(references)
 
 
-def _reference_candidates(circuit: Circuit):
-    """Nodes in the order they are tried as an isolated part's reference.
+def _island_references(circuit, table: _Terminals, island: np.ndarray, found) -> list[str]:
+    """One reference per part with no path to ground, with a warning naming the part.
 
     A part's reference is the 'n' terminal of the first element that reaches it (for a
     transformer: its secondary's n2), so V(p) of that element reads naturally.
     """
-    for element in circuit.elements.values():
+    members: dict[int, list[str]] = defaultdict(list)
+    for node, label in zip(table.nodes, island.tolist()):
+        members[label].append(node)
+    seen = {island[table.index[GROUND]]}
+    references = []
+    for element in table.elements:
         nodes = element.nodes
-        order = (nodes[3], nodes[2], nodes[1], nodes[0]) if len(nodes) == 4 else \
-            (nodes[1], nodes[0])
-        yield from order
-
-
-def _first_line(circuit: Circuit, node: str) -> int | None:
-    for element in circuit.elements.values():
-        if node in element.nodes:
-            return element.line
-    return None
-
-
-def _dangling(circuit: Circuit, skip: set[str]) -> list[Diagnostic]:
-    count: dict[str, int] = defaultdict(int)
-    owner: dict[str, Element] = {}
-    for element in circuit.elements.values():
-        for node in element.nodes:
-            count[node] += 1
-            owner[node] = element
-    found = []
-    for node, n in count.items():
-        if n == 1 and node != GROUND and node not in skip:
-            element = owner[node]
+        for node in (nodes[::-1] if len(nodes) == 4 else (nodes[1], nodes[0])):
+            label = island[table.index[node]]
+            if label in seen:
+                continue
+            seen.add(label)
+            references.append(node)
+            part = members[label]
+            shown = ", ".join(part[:6]) + (", …" if len(part) > 6 else "")
             found.append(Diagnostic(
-                f"node '{node}' is reached by one terminal only ({element.name}): no current "
-                f"can flow in {element.name}; a misspelt node?",
-                "check the node's spelling, or connect it", element.line, 1,
-                len(element.name), "warning"))
+                f"nodes {shown} have no conductive path to ground: node '{node}' is taken "
+                "as their reference", "currents and powers there are exact; node voltages "
+                "there are relative to that node (connect the part to ground to fix it)",
+                element.line, 1, 1, "warning"))
+    return references
+
+
+def _dangling(table: _Terminals, skip: set[str]) -> list[Diagnostic]:
+    counts = np.bincount(np.concatenate([table.p, table.n]), minlength=len(table.nodes))
+    found = []
+    for k in np.flatnonzero(counts == 1).tolist():
+        node = table.nodes[k]
+        if node == GROUND or node in skip:
+            continue
+        at = np.flatnonzero((table.p == k) | (table.n == k))[0]
+        element = table.elements[table.owner[at]]
+        found.append(Diagnostic(
+            f"node '{node}' is reached by one terminal only ({element.name}): no current "
+            f"can flow in {element.name}; a misspelt node?",
+            "check the node's spelling, or connect it", element.line, 1,
+            len(element.name), "warning"))
     return found
 
 
