@@ -44,7 +44,6 @@ SIMPLE_ELEMENT = re.compile(
     r"(resistor|capacitor|inductor|impedance|admittance|voltage|current)[ \t]+"
     r"([A-Za-z0-9_.]+)[ \t]*->[ \t]*([A-Za-z0-9_.]+)[ \t]+"
     r"(-?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)[ \t]*([A-Za-zµΩ]*)[ \t]*(?:#.*)?")
-_SIMPLE_FULL = SIMPLE_ELEMENT.fullmatch
 
 
 def _canonical_node(text: str) -> str:
@@ -110,8 +109,6 @@ class ElementReader:
     def read_simple(self, line) -> bool:
         """Read a line of the fast shape; False when the full reader must look at it."""
         match = line.match
-        if _SIMPLE_FULL(line.text) is None:
-            return False
         name, kind, p, n, number, suffix = match.groups()
         value = float(number)
         if suffix:

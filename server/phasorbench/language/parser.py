@@ -125,7 +125,7 @@ class CircuitParser:
 
     def classify(self) -> list[_Line]:
         lines = []
-        simple = SIMPLE_ELEMENT.match
+        simple = SIMPLE_ELEMENT.fullmatch
         for number, raw in enumerate(source_lines(self.text), start=1):
             match = simple(raw)
             if match is not None:
