@@ -198,34 +198,19 @@ def _voltage_loops(circuit: Circuit) -> list[Diagnostic]:
 
 
 class _Terminals:
-    """Every branch (a two-terminal element, or one transformer winding) as node indices.
-
-    Built once per check so the graph questions below are array operations, which keeps
-    the checks fast on circuits of tens of thousands of elements.
-    """
+    """The circuit's branches as node indices (``model.ElementTable``) plus which of them
+    carry a fixed current, so the graph questions below are array operations."""
 
     def __init__(self, circuit: Circuit):
-        self.nodes = circuit.nodes()
-        self.index = dict(zip(self.nodes, range(len(self.nodes))))
-        elements = list(circuit.elements.values())
-        self.elements = elements
-        owner, first, second = [], [], []
-        for k, e in enumerate(elements):
-            nodes = e.nodes
-            owner.append(k)
-            first.append(nodes[0])
-            second.append(nodes[1])
-            if len(nodes) == 4:
-                owner.append(k)
-                first.append(nodes[2])
-                second.append(nodes[3])
-        get = self.index.__getitem__
-        self.owner = np.array(owner, dtype=np.int64)
-        self.p = np.fromiter(map(get, first), np.int64, len(first))
-        self.n = np.fromiter(map(get, second), np.int64, len(second))
-        current_type = np.array([e.kind in CURRENT_KINDS or is_open(e) for e in elements],
-                                dtype=bool)
-        self.current_type = current_type[self.owner] if len(elements) else current_type
+        table = circuit.table()
+        self.nodes = table.node_names
+        self.index = table.node_index
+        self.elements = table.elements
+        self.p, self.n, self.owner = table.p, table.n, table.owner
+        current_type = np.array([kind in CURRENT_KINDS for kind in table.kinds], dtype=bool)
+        current_type |= (table.values == 0) & np.array(
+            [kind == "admittance" for kind in table.kinds], dtype=bool)
+        self.current_type = current_type[self.owner]
 
     def components(self, mask=None) -> np.ndarray:
         """Connected-component label of every node, using the branches where ``mask``."""

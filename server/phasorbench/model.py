@@ -10,6 +10,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from itertools import chain
+from operator import attrgetter, itemgetter
+
+import numpy as np
 
 GROUND = "0"
 
@@ -94,12 +97,61 @@ class Circuit:
     warnings: list = field(default_factory=list)      # Diagnostics found while reading
     #: Nodes held at 0 V besides ground: one per part with no conductive path to ground.
     references: tuple[str, ...] = ()
+    _table: "ElementTable | None" = field(default=None, init=False, repr=False,
+                                          compare=False)
+
+    def table(self) -> "ElementTable":
+        """The elements as columns (built once; the checks and the solver both read it)."""
+        key = (id(self.elements), len(self.elements))
+        if self._table is None or self._table.key != key:
+            self._table = ElementTable(self, key)
+        return self._table
     text: str = ""
     filename: str = "<circuit>"
 
     def nodes(self) -> list[str]:
         """Every node that an element terminal touches, ground first, in order of appearance."""
-        seen = dict.fromkeys((GROUND,))
-        seen.update(dict.fromkeys(chain.from_iterable(
-            e.nodes for e in self.elements.values())))
-        return list(seen)
+        return list(self.table().node_names)
+
+
+class ElementTable:
+    """The circuit's elements as parallel columns, for array code over big circuits.
+
+    Attribute access over tens of thousands of element objects is the slow part of
+    Python code here, so it happens once: ``names``, ``kinds``, ``values`` (complex
+    array), ``node_names`` (ground first, in order of appearance) with ``node_index``,
+    and per branch — one per two-terminal element, two per transformer (one per
+    winding) — ``owner`` (element position), ``p`` and ``n`` (node positions).
+    ``first`` maps each element to its first branch.
+    """
+
+    def __init__(self, circuit: "Circuit", key):
+        self.key = key
+        elements = list(circuit.elements.values())
+        self.elements = elements
+        self.names = tuple(circuit.elements)
+        if elements:
+            kinds, values, nodes = zip(*map(_COLUMNS, elements))
+        else:
+            kinds, values, nodes = (), (), ()
+        self.kinds = kinds
+        self.values = np.array(values, dtype=complex)
+        self.node_names = list(dict.fromkeys(chain((GROUND,), chain.from_iterable(nodes))))
+        self.node_index = dict(zip(self.node_names, range(len(self.node_names))))
+        get = self.node_index.__getitem__
+        count = len(elements)
+        p = np.fromiter(map(get, map(_FIRST, nodes)), np.int64, count)
+        n = np.fromiter(map(get, map(_SECOND, nodes)), np.int64, count)
+        owner = np.arange(count, dtype=np.int64)
+        windings = [k for k, kind in enumerate(kinds) if kind == "transformer"]
+        if windings:
+            p = np.concatenate([p, [get(nodes[k][2]) for k in windings]])
+            n = np.concatenate([n, [get(nodes[k][3]) for k in windings]])
+            owner = np.concatenate([owner, windings])
+        self.p, self.n, self.owner = p, n, owner
+        self.first = np.arange(count, dtype=np.int64)
+
+
+_COLUMNS = attrgetter("kind", "value", "nodes")
+_FIRST = itemgetter(0)
+_SECOND = itemgetter(1)

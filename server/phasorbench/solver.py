@@ -13,8 +13,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from itertools import chain
-from operator import attrgetter, itemgetter
 
 import numpy as np
 import scipy.sparse as sp
@@ -126,25 +124,23 @@ def _require_finite(solution: "Solution") -> None:
 
 def _solve(circuit: Circuit) -> Solution:
     omega = 2.0 * math.pi * circuit.frequency
-    elements = list(circuit.elements.values())
+    table = circuit.table()              # built once, shared with the structure checks
+    elements, names, values = table.elements, table.names, table.values
     count = len(elements)
-    names = tuple(circuit.elements)
+    codes = np.fromiter(map(_KIND_CODE.__getitem__, table.kinds), np.int8, count)
 
-    # Columns of the element table in one pass (attribute access is the cost here).
-    kinds, value_list, node_list = zip(*map(_COLUMNS, elements)) if elements else ((), (), ())
-    codes = np.fromiter(map(_KIND_CODE.__getitem__, kinds), np.int8, count)
-    values = np.array(value_list, dtype=complex)
-
-    # Node table: every node in order of appearance; references read the appended 0 V.
-    all_nodes = list(dict.fromkeys(chain((GROUND,), chain.from_iterable(node_list))))
-    references = {GROUND, *circuit.references}
-    node_names = [n for n in all_nodes if n not in references]
-    n_nodes = len(node_names)
-    index = dict(zip(node_names, range(n_nodes)))
-    for ref in references:
-        index[ref] = -1
-    p_all = np.fromiter(map(index.__getitem__, map(itemgetter(0), node_list)), np.int64, count)
-    n_all = np.fromiter(map(index.__getitem__, map(itemgetter(1), node_list)), np.int64, count)
+    # Unknown number of every node; references (ground, isolated parts' own) read the
+    # appended 0 V at position -1.
+    all_nodes = table.node_names
+    is_reference = np.zeros(len(all_nodes), dtype=bool)
+    for ref in (GROUND, *circuit.references):
+        is_reference[table.node_index[ref]] = True
+    unknown = np.full(len(all_nodes), -1, dtype=np.int64)
+    n_nodes = int((~is_reference).sum())
+    unknown[~is_reference] = np.arange(n_nodes)
+    node_names = [all_nodes[k] for k in np.flatnonzero(~is_reference).tolist()]
+    index = _NodeIndex(table.node_index, unknown)
+    p_all, n_all = unknown[table.p[:count]], unknown[table.n[:count]]
 
     # Which elements need a branch-current unknown.
     branch_mask = codes >= _FIRST_BRANCH_CODE
@@ -208,13 +204,23 @@ def _solve(circuit: Circuit) -> Solution:
         elif e.kind == "cccs":
             current[k] = e.value * x[branch_of[e.sense_element]]
 
-    all_index = np.fromiter(map(index.__getitem__, all_nodes), np.int64, len(all_nodes))
-    node_voltages = dict(zip(all_nodes, v_ext[all_index].tolist()))
+    node_voltages = dict(zip(all_nodes, v_ext[unknown].tolist()))
     return Solution(circuit, names, node_voltages, voltage, current, secondary,
                     tuple(circuit.warnings) + tuple(warnings), condition)
 
 
-_COLUMNS = attrgetter("kind", "value", "nodes")
+class _NodeIndex:
+    """Node name → unknown number (-1 for a reference), for the few per-element stamps."""
+
+    __slots__ = ("_position", "_unknown")
+
+    def __init__(self, position: dict[str, int], unknown: np.ndarray):
+        self._position, self._unknown = position, unknown
+
+    def __getitem__(self, name: str) -> int:
+        return int(self._unknown[self._position[name]])
+
+
 _KIND_CODE = {"resistor": 0, "impedance": 1, "capacitor": 2, "inductor": 3, "admittance": 4,
               "current": 5, "vccs": 6, "cccs": 7,
               "voltage": 8, "vcvs": 9, "ccvs": 10, "transformer": 11}
