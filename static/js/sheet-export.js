@@ -37,15 +37,19 @@ async function errorsOf(response) {
 
 /**
  * Export the solved sheet of `netlist`, drawing the `elements` chosen on the page
- * (an empty or missing list takes the sheet's default set).
+ * (an empty or missing list takes the sheet's default set). `tools` may carry the
+ * page's power tools as their panels asked for them: `correct` (the body of
+ * POST /api/correct without `netlist`) and `port` ({a, b}); the sheet then shows them.
  *
  * Resolves to {ok: true, filename} once the download has started, or to
  * {ok: false, status, data} with the API's {errors, warnings} (422 for a circuit with
  * errors, 0 when the server did not answer) for the page to show.
  */
-export async function exportSheet(netlist, elements) {
+export async function exportSheet(netlist, elements, tools = {}) {
   const body = {netlist};
   if (Array.isArray(elements) && elements.length) body.elements = elements;
+  if (tools.correct) body.correct = tools.correct;
+  if (tools.port) body.port = tools.port;
   let response;
   try {
     response = await fetch("/api/sheet", {

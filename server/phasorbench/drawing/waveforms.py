@@ -160,7 +160,7 @@ def waveform_svg(samples: dict, width: int = 640, height: int = 360) -> str:
     freq = fmt.eng(samples["frequency_hz"], "Hz")
     head = f"{name}{port} ({kind}): instantaneous values at {freq}"
     body.append(text(12, 17, head, halo=False, font_weight="bold", class_="pb-caption"))
-    if regions and p_avg < 0:
+    if regions and p_avg < -tol:
         # Passive sign: a source's p(t) < 0 is the energy it feeds in, not a return.
         note = f"Shaded: p(t) < 0, energy delivered to the circuit: {energy} per cycle"
     elif regions:

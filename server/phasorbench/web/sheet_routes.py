@@ -11,10 +11,11 @@ from __future__ import annotations
 import asyncio
 import functools
 import logging
+from typing import Literal
 
 from fastapi import APIRouter, Request
 from fastapi.responses import Response
-from pydantic import Field
+from pydantic import BaseModel, Field
 
 from ..errors import CircuitError
 from . import answers
@@ -23,30 +24,62 @@ from .jsonsafe import StrictJSONResponse
 from .limits import check_size
 from .settings import Settings
 
-__all__ = ["SheetBody", "router", "sheet_answer"]
+__all__ = ["CorrectionAsk", "PortAsk", "SheetBody", "router", "sheet_answer"]
 
 log = logging.getLogger("phasorbench.web")
 
 router = APIRouter()
 
 
+class CorrectionAsk(BaseModel):
+    """A power-factor correction to add to the sheet: the fields of ``POST /api/correct``."""
+
+    source: str = Field(description="an independent voltage or current source, or a voltage3 block")
+    target: float = Field(description="target power factor in (0, 1], lagging unless leading")
+    at: str | list[str] | None = Field(
+        None, description="a node (to ground) or three line nodes for a bank; left out, "
+                          "across the source's terminals")
+    across: list[str] | None = Field(None, min_length=2, max_length=2,
+                                     description="two nodes: a capacitor across them")
+    bank: Literal["wye", "delta"] | None = Field(None, description="connection of a bank")
+    leading: bool = Field(False, description="aim at a leading target")
+    rated_voltage: float | None = Field(None, description="rated rms voltage of each unit, V")
+
+
+class PortAsk(BaseModel):
+    """A port to add to the sheet: the fields of ``POST /api/port``."""
+
+    a: str = Field(description="the port's first node")
+    b: str = Field(description="the port's second node (0 for ground)")
+
+
 class SheetBody(CircuitBody):
-    """A circuit text and, optionally, the elements the sheet should draw."""
+    """A circuit text and, optionally, what else the sheet should show."""
 
     elements: list[str] | None = Field(
         None, description="elements whose waveforms and phasors the sheet draws (the page's "
                           "selection); left out, each source and reactive element, capped")
+    correct: CorrectionAsk | None = Field(
+        None, description="add a power-factor correction, as the page's correction panel "
+                          "asks for it")
+    port: PortAsk | None = Field(None, description="add the Thevenin and Norton equivalents "
+                                                   "seen from two nodes")
 
 
-def sheet_answer(text: str, elements: list[str] | None, settings: Settings) -> tuple[str, str]:
-    """``(html, download name)`` of the sheet of ``text``; raises ``CircuitError``."""
+def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
+    """``(html, download name)`` of the sheet ``body`` asks for; raises ``CircuitError``."""
     from .. import workflow
     from ..sheet import render_context, sheet_context
+    from ..sheet.powertools import run_power_tools
 
+    text, name = body.netlist, answers.PAGE_FILENAME
     check_size(text, settings.max_elements)
-    result = workflow.solve_text(text, answers.PAGE_FILENAME)
-    context = sheet_context(text, answers.PAGE_FILENAME, result=result,
-                            waveform_elements=elements, phasor_elements=elements)
+    result = workflow.solve_text(text, name)
+    correct = body.correct.model_dump() if body.correct else None
+    port = (body.port.a, body.port.b) if body.port else None
+    tools = run_power_tools(text, name, correct=correct, port=port)
+    context = sheet_context(text, name, result=result, waveform_elements=body.elements,
+                            phasor_elements=body.elements, **tools)
     return render_context(context), context["filename"]
 
 
@@ -69,7 +102,7 @@ async def sheet(body: SheetBody, request: Request):
         # The solve pool of the app when it has one (create_app makes it).
         html, filename = await loop.run_in_executor(
             getattr(state, "solve_pool", None),
-            functools.partial(sheet_answer, body.netlist, body.elements, settings))
+            functools.partial(sheet_answer, body, settings))
     except CircuitError as exc:
         return StrictJSONResponse(answers.diagnostics_answer(exc.diagnostics), status_code=422)
     except Exception:

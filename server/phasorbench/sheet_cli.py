@@ -1,0 +1,86 @@
+"""The ``phasorbench sheet`` command: write the solved sheet of a circuit file.
+
+``phasorbench sheet FILE -o OUT.html`` (``-`` reads standard input; no ``-o``, or
+``-o -``, writes the sheet to standard output). Exit status and error text are those
+of ``solve``: 0 written, 2 the input is wrong (``FILE:LINE:COL: error: ...``, nothing
+written), 1 an internal failure. ``cli.py`` finds this module and registers it.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import tempfile
+
+from .cli import EXIT_INPUT, EXIT_OK, load_source
+from .errors import Diagnostic, format_diagnostic
+
+__all__ = ["add_sheet_command", "command_sheet"]
+
+
+def add_sheet_command(commands) -> None:
+    """Register ``sheet`` on the command line's sub-command set."""
+    sheet = commands.add_parser(
+        "sheet", help="write a self-contained HTML sheet of the solved circuit",
+        description="Solve a circuit and write its solved sheet: one HTML file holding the "
+                    "input and its SHA-256, the conventions, every node and branch, the "
+                    "power balance, the diagrams, the warnings and the safety cautions.")
+    sheet.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
+    sheet.add_argument("-o", "--output", metavar="OUT.html", default="-",
+                       help="where to write the sheet (default: standard output)")
+    sheet.add_argument("--element", action="append", metavar="NAME", dest="elements",
+                       help="draw this element's waveform and phasors (repeat for more); "
+                            "default: each source and reactive element, capped")
+    sheet.add_argument("--correct", nargs=2, metavar=("SOURCE", "PF"),
+                       help="add a power-factor correction: the shunt capacitor across "
+                            "SOURCE that brings it to PF lagging (phasorbench correct has "
+                            "the other placements)")
+    sheet.add_argument("--port", nargs=2, metavar=("A", "B"),
+                       help="add the Thevenin and Norton equivalents seen from nodes A and B")
+    sheet.set_defaults(run=command_sheet)
+
+
+def _write(path: str, html: str) -> None:
+    """Write ``html`` to ``path`` whole or not at all (a temporary file, then a rename)."""
+    folder = os.path.dirname(os.path.abspath(path))
+    handle, temporary = tempfile.mkstemp(prefix=".sheet-", suffix=".html", dir=folder)
+    try:
+        # mkstemp makes the file private; a sheet gets the mode any new file would.
+        mask = os.umask(0)
+        os.umask(mask)
+        os.chmod(temporary, 0o666 & ~mask)
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as out:
+            out.write(html)
+        os.replace(temporary, path)
+    except BaseException:
+        os.unlink(temporary)
+        raise
+
+
+def command_sheet(args) -> int:
+    from .sheet import render_context, sheet_context
+    from .sheet.powertools import run_power_tools
+    from .workflow import solve_text
+    text, name = load_source(args)
+    result = solve_text(text, name)
+    correct = ({"source": args.correct[0], "target": args.correct[1]} if args.correct
+               else None)
+    tools = run_power_tools(text, name, correct=correct, port=args.port)
+    html = render_context(sheet_context(text, name, result=result,
+                                        waveform_elements=args.elements,
+                                        phasor_elements=args.elements, **tools))
+    if args.output == "-":
+        sys.stdout.write(html)
+        sys.stdout.flush()
+    else:
+        try:
+            _write(args.output, html)
+        except OSError as exc:
+            print(f"{args.output}: error: cannot write the sheet ({exc.strerror or exc})",
+                  file=sys.stderr)
+            return EXIT_INPUT
+    # Warnings as ``solve`` prints them (the sheet lists them too).
+    for w in result["warnings"]:
+        d = Diagnostic(w["message"], w["hint"], w["line"], w["column"], 1, "warning")
+        print(format_diagnostic(d, name, text), file=sys.stderr)
+    return EXIT_OK

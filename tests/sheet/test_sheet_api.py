@@ -1,0 +1,140 @@
+"""``POST /api/sheet`` through the real app: a download, errors as ``/api/solve`` has them."""
+
+from __future__ import annotations
+
+import logging
+
+from phasorbench.cli import main
+from phasorbench.web import sheet_routes
+
+from .conftest import RC_BENCH, ROOT, STAMP, element_text, ladder, visible_text
+
+BAD = "frequency 50 Hz\nV1: voltage a -> 0 230 V\nR1: resistor a -> 0 5 uH\n"
+
+
+def test_answers_html_as_an_attachment_named_by_the_title(api):
+    r = api.post("/api/sheet", json={"netlist": RC_BENCH})
+    assert r.status_code == 200
+    assert r.headers["content-type"] == "text/html; charset=utf-8"
+    # RFC 6266, 4.1: attachment with a quoted file name.
+    assert r.headers["content-disposition"] == 'attachment; filename="rc-bench-sheet.html"'
+    assert r.headers["x-content-type-options"] == "nosniff"
+    assert element_text(r.text, "pre", "source") == RC_BENCH
+    untitled = api.post("/api/sheet", json={"netlist": RC_BENCH.replace("title RC bench\n", "")})
+    assert untitled.headers["content-disposition"] == 'attachment; filename="circuit-sheet.html"'
+
+
+def test_cli_and_api_give_the_same_sheet(api, tmp_path, capsys):
+    cases = [("bakery-feeder", None), ("plant-three-phase", ["Rn", "Motors.a"]),
+             ("pump-station-transformer", None)]
+    for name, elements in cases:
+        path = ROOT / "samples" / f"{name}.circuit"
+        out = tmp_path / f"{name}.html"
+        chosen = [arg for e in elements or [] for arg in ("--element", e)]
+        assert main(["sheet", str(path), "-o", str(out), *chosen]) == 0
+        capsys.readouterr()
+        body = {"netlist": path.read_text(encoding="utf-8")}
+        if elements:
+            body["elements"] = elements
+        served = api.post("/api/sheet", json=body)
+        assert served.status_code == 200
+        # Identical apart from the moment each was made (issue 4, tests).
+        assert STAMP.sub("", served.text) == STAMP.sub("", out.read_text(encoding="utf-8")), name
+        assert len(STAMP.findall(served.text)) == 1
+
+
+def test_circuit_errors_are_422_like_solve(api):
+    # results-contract.md, errors: 422 with {"errors": [...]}
+    sheet = api.post("/api/sheet", json={"netlist": BAD})
+    solve = api.post("/api/solve", json={"netlist": BAD})
+    assert sheet.status_code == solve.status_code == 422
+    assert sheet.headers["content-type"].startswith("application/json")
+    assert sheet.json() == solve.json()
+    (error,) = sheet.json()["errors"]
+    assert (error["line"], error["column"]) == (3, 21)
+
+
+def test_chosen_elements(api):
+    # common practice, no source: an unknown name is the client's error (RFC 9110, 15.5.21: 422)
+    r = api.post("/api/sheet", json={"netlist": RC_BENCH, "elements": ["R1"]})
+    assert r.status_code == 200 and "Elements chosen for this sheet: R1." in r.text
+    r = api.post("/api/sheet", json={"netlist": RC_BENCH, "elements": ["R9"]})
+    assert r.status_code == 422
+    assert r.json()["errors"][0]["message"] == "the circuit has no element named 'R9'"
+
+
+def test_malformed_body_gets_the_error_shape(api):
+    # results-contract.md, errors: one error shape for every bad request
+    r = api.post("/api/sheet", json={"circuit": RC_BENCH})
+    assert r.status_code == 422 and r.json()["errors"][0]["message"].startswith("request body:")
+
+
+def test_size_limit_as_solve(make_api):
+    # web/settings.py MAX_ELEMENTS: the same limit and message as /api/solve
+    small = make_api(max_elements=50)
+    text = ladder(60)
+    sheet = small.post("/api/sheet", json={"netlist": text})
+    assert sheet.status_code == 422
+    assert sheet.json() == small.post("/api/solve", json={"netlist": text}).json()
+
+
+def test_guards_apply(api):
+    # A page of another site may not make the server work (Fetch standard, Origin header).
+    r = api.post("/api/sheet", json={"netlist": RC_BENCH},
+                 headers={"Origin": "https://elsewhere.example"})
+    assert r.status_code == 403
+
+
+def test_internal_error_is_500_without_details(api, monkeypatch, caplog):
+    def broken(*args):
+        raise KeyError("secret detail")
+    monkeypatch.setattr(sheet_routes, "sheet_answer", broken)
+    with caplog.at_level(logging.ERROR, logger="phasorbench.web"):
+        r = api.post("/api/sheet", json={"netlist": RC_BENCH})
+    assert r.status_code == 500
+    assert "secret detail" not in r.text
+    assert r.json()["errors"][0]["message"].startswith("internal error")
+    assert "secret detail" in caplog.text                  # logged for the operator
+
+
+def test_route_is_in_the_api_schema(api):
+    # OpenAPI 3.1, Paths Object: every route is listed
+    paths = api.get("/openapi.json").json()["paths"]
+    assert "post" in paths["/api/sheet"]
+
+
+def test_power_tools_same_as_the_command_line(api, tmp_path, capsys):
+    from .test_sheet_cli import MOTOR
+    path = tmp_path / "motor.circuit"
+    path.write_text(MOTOR, encoding="utf-8")
+    out = tmp_path / "motor.html"
+    assert main(["sheet", str(path), "-o", str(out), "--correct", "V1", "0.95",
+                 "--port", "a", "0"]) == 0
+    capsys.readouterr()
+    served = api.post("/api/sheet", json={"netlist": MOTOR, "correct": {"source": "V1",
+                                                                        "target": 0.95},
+                                          "port": {"a": "a", "b": "0"}})
+    assert served.status_code == 200
+    assert STAMP.sub("", served.text) == STAMP.sub("", out.read_text(encoding="utf-8"))
+    assert "310.438 µF" in served.text                  # check-values C14
+    wrong = api.post("/api/sheet", json={"netlist": MOTOR, "port": {"a": "a"}})
+    assert wrong.status_code == 422
+    unknown = api.post("/api/sheet", json={"netlist": MOTOR, "port": {"a": "a", "b": "zz"}})
+    assert unknown.status_code == 422 and "zz" in unknown.json()["errors"][0]["message"]
+
+
+def test_bank_correction_reads_as_the_page_panel(api):
+    text = (ROOT / "samples" / "plant-three-phase.circuit").read_text(encoding="utf-8")
+    ask = {"source": "Mains", "target": 0.99, "bank": "delta", "at": ["a", "b", "c"]}
+    panel = api.post("/api/correct", json={"netlist": text, **ask})
+    sheet = api.post("/api/sheet", json={"netlist": text, "correct": ask})
+    assert panel.status_code == sheet.status_code == 200
+    shown = visible_text(sheet.text)
+    # The page and the sheet read the same (common practice, no source: one display).
+    for fact in panel.json()["display"]["facts"]:
+        assert " ".join(f"{fact['term']} {fact['value']}".split()) in shown
+    # A delta bank is three units, one across each pair of lines.
+    assert sheet.text.count("<caption>Capacitors</caption>") == 1
+    for unit in panel.json()["display"]["capacitors"]:
+        assert unit["name"] in shown
+    assert len(panel.json()["display"]["capacitors"]) == 3

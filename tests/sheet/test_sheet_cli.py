@@ -1,0 +1,154 @@
+"""``phasorbench sheet FILE -o OUT.html``: same exits and error text as ``solve``."""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+
+import pytest
+
+from phasorbench.cli import main
+from phasorbench.sheet import render_sheet
+
+from .conftest import NOW, RC_BENCH, ROOT, STAMP, element_text
+
+BAD = """\
+frequency 50 Hz
+V1: voltage  a -> 0   230 V
+R1: resistor a -> 0   5 uH
+C1: capacitor a -> 0  10 q
+"""
+
+
+def run(argv, capsys):
+    status = main(argv)
+    out = capsys.readouterr()
+    return status, out.out, out.err
+
+
+@pytest.fixture
+def rc_file(tmp_path):
+    path = tmp_path / "rc.circuit"
+    path.write_text(RC_BENCH, encoding="utf-8")
+    return path
+
+
+def test_writes_the_sheet_of_the_file(rc_file, tmp_path, capsys):
+    out = tmp_path / "rc.html"
+    status, stdout, stderr = run(["sheet", str(rc_file), "-o", str(out)], capsys)
+    assert (status, stdout, stderr) == (0, "", "")
+    html = out.read_text(encoding="utf-8")
+    # The same document render_sheet makes, apart from the moment it was made.
+    assert STAMP.sub("", html) == STAMP.sub("", render_sheet(RC_BENCH, now=NOW))
+    assert element_text(html, "pre", "source") == RC_BENCH
+    # A new file gets the permissions any new file gets (the umask), not private ones.
+    mask = os.umask(0)
+    os.umask(mask)
+    assert out.stat().st_mode & 0o777 == 0o666 & ~mask
+
+
+def test_no_output_option_writes_to_standard_output(rc_file, capsys):
+    # common practice, no source: no -o writes to standard output
+    status, stdout, _ = run(["sheet", str(rc_file)], capsys)
+    assert status == 0 and stdout.startswith("<!doctype html>") and "RC bench" in stdout
+
+
+def test_standard_input_and_exit_status_in_a_real_process(tmp_path):
+    # results-contract.md, errors: exit 2, FILE:LINE:COL, no traceback; "-" is standard
+    # input (POSIX utility syntax guidelines, guideline 13).
+    out = tmp_path / "stdin.html"
+    done = subprocess.run([sys.executable, "-m", "phasorbench", "sheet", "-", "-o", str(out)],
+                          input=RC_BENCH.encode(), capture_output=True, timeout=60, cwd=tmp_path)
+    assert done.returncode == 0, done.stderr
+    assert element_text(out.read_text(encoding="utf-8"), "pre", "source") == RC_BENCH
+    bad = subprocess.run([sys.executable, "-m", "phasorbench", "sheet", "-"], input=BAD.encode(),
+                         capture_output=True, timeout=60, cwd=tmp_path)
+    assert bad.returncode == 2 and bad.stdout == b"" and b"Traceback" not in bad.stderr
+    assert b"<stdin>:3:" in bad.stderr
+
+
+def test_input_errors_exit_2_exactly_like_solve(tmp_path, capsys):
+    path = tmp_path / "bad.circuit"
+    path.write_text(BAD, encoding="utf-8")
+    out = tmp_path / "bad.html"
+    out.write_text("an older sheet", encoding="utf-8")
+    solve = run(["solve", str(path)], capsys)
+    sheet = run(["sheet", str(path), "-o", str(out)], capsys)
+    assert solve[0] == sheet[0] == 2
+    # Every error, as FILE:LINE:COL: error: with the line and a caret, word for word
+    # the same as `solve` prints (results-contract.md, errors).
+    assert sheet[2] == solve[2] and f"{path}:3:" in sheet[2] and f"{path}:4:" in sheet[2]
+    assert out.read_text(encoding="utf-8") == "an older sheet"        # nothing written
+
+
+def test_missing_file_exits_2_like_solve(tmp_path, capsys):
+    # results-contract.md, errors: `FILE: error: ...` and exit 2
+    missing = str(tmp_path / "none.circuit")
+    assert run(["sheet", missing], capsys)[1:] == ("", f"{missing}: error: no such file\n")
+    assert run(["solve", missing], capsys)[0] == 2
+
+
+def test_unwritable_output_exits_2(rc_file, tmp_path, capsys):
+    # common practice, no source: a bad output path is the user's to fix
+    target = tmp_path / "no" / "such" / "folder" / "x.html"
+    status, _, stderr = run(["sheet", str(rc_file), "-o", str(target)], capsys)
+    assert status == 2 and stderr.startswith(f"{target}: error: cannot write the sheet")
+    assert not target.parent.exists()
+
+
+def test_warnings_go_to_stderr_like_solve(tmp_path, capsys):
+    # results-contract.md: warnings at their line, on standard error
+    sample = ROOT / "samples" / "pump-station-transformer.circuit"
+    solve = run(["solve", str(sample)], capsys)
+    sheet = run(["sheet", str(sample), "-o", str(tmp_path / "pump.html")], capsys)
+    assert sheet[0] == 0 and sheet[2] == solve[2] and ":8:1: warning:" in sheet[2]
+
+
+def test_chosen_elements_and_unknown_ones(rc_file, tmp_path, capsys):
+    # common practice, no source: the reader's choice is drawn and stated
+    out = tmp_path / "chosen.html"
+    assert run(["sheet", str(rc_file), "-o", str(out), "--element", "R1",
+                "--element", "V1"], capsys)[0] == 0
+    html = out.read_text(encoding="utf-8")
+    assert "Elements chosen for this sheet: R1, V1." in html
+    assert html.count('class="pb-wave"') == 2
+    status, _, stderr = run(["sheet", str(rc_file), "--element", "Rx"], capsys)
+    assert status == 2 and "error: the circuit has no element named 'Rx'" in stderr
+
+
+def test_internal_failure_exits_1_without_traceback(rc_file, monkeypatch, capsys):
+    # cli.py's rule from DEVELOPERS.md: bad input never ends in a traceback; 1 is internal
+    import phasorbench.sheet as sheet
+
+    def broken(context):
+        raise ZeroDivisionError("boom")
+    monkeypatch.setattr(sheet, "render_context", broken)
+    monkeypatch.delenv("PHASORBENCH_DEBUG", raising=False)
+    status, stdout, stderr = run(["sheet", str(rc_file)], capsys)
+    assert status == 1 and stdout == ""
+    assert "internal error: ZeroDivisionError: boom" in stderr and "Traceback" not in stderr
+
+
+MOTOR = """\
+title Motor on 120 V
+frequency 60 Hz
+V1: voltage   a -> 0   120 V
+Z1: impedance a -> 0   2.304 + j1.728 ohm
+"""
+
+
+def test_power_tools_on_the_sheet(tmp_path, capsys):
+    path = tmp_path / "motor.circuit"
+    path.write_text(MOTOR, encoding="utf-8")
+    out = tmp_path / "motor.html"
+    assert run(["sheet", str(path), "-o", str(out), "--correct", "V1", "0.95",
+                "--port", "a", "0"], capsys)[0] == 0
+    html = out.read_text(encoding="utf-8")
+    # check-values C14: C = 310.438 µF (Alexander & Sadiku PFC example, book 310.5 µF).
+    assert 'id="correction"' in html and "310.438 µF" in html and 'id="port"' in html
+    # A wrong source is the `correct` command's error, word for word, and exit 2.
+    sheet = run(["sheet", str(path), "--correct", "V9", "0.95"], capsys)
+    correct = run(["correct", str(path), "--source", "V9", "--target", "0.95"], capsys)
+    assert sheet[0] == correct[0] == 2 and sheet[2] == correct[2]
+    assert "'V9' is not an element" in sheet[2]
