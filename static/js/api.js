@@ -34,6 +34,11 @@ export const postPhasors = (netlist, elements, size, signal) =>
   postJSON("/api/phasors", {netlist, elements, ...size}, signal);
 export const postWaveforms = (netlist, elements, size, signal) =>
   postJSON("/api/waveforms", {netlist, elements, ...size}, signal);
+export const postThreePhase = (netlist, group, size, signal) =>
+  postJSON("/api/three-phase", {netlist, group, ...size}, signal);
+/** `ask`: {source, target, leading, at | across, bank, rated_voltage} (see /docs). */
+export const postCorrect = (netlist, ask, signal) => postJSON("/api/correct", {netlist, ...ask}, signal);
+export const postPort = (netlist, a, b, signal) => postJSON("/api/port", {netlist, a, b}, signal);
 
 export async function getSamples() {
   try {

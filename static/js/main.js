@@ -4,11 +4,16 @@
 // view settings) is written to localStorage on every change.
 
 import {getSamples, postCheck, postPhasors, postSolve, postWaveforms} from "./api.js";
+import {createCorrection} from "./correction.js";
 import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
+import {createPort} from "./port.js";
+import {exportSheet} from "./sheet-export.js";
 import {loadSaved, save} from "./store.js";
 import {renderFacts, renderSummary} from "./summary.js";
 import {markSelected, renderBranchTable, renderNodeTable} from "./tables.js";
+import {createThreePhase} from "./threephase.js";
+import {createTabs, savedTool} from "./tools.js";
 import {clearViews, renderPicker, showPhasors, showWaveform} from "./views.js";
 
 const CHECK_DELAY_MS = 350;
@@ -19,6 +24,7 @@ const state = {
   selected: null,        // the element selected everywhere
   shown: [],             // further elements drawn in the phasor diagram
   sort: {key: null, dir: 1},
+  expanded: [],          // three-phase blocks whose phase rows are open in the branch table
   answer: null,          // the last successful solve answer
   solvedText: "",        // the text that answer belongs to
   seq: {check: 0, solve: 0, views: 0},
@@ -26,6 +32,7 @@ const state = {
 };
 
 let editor;
+let tools;               // the Tools panel: {tabs, correction, port, threePhase}
 const limit = () => Number(document.body.dataset.maxViewElements) || 12;
 
 function abortable(kind) {
@@ -116,7 +123,7 @@ function showBanner(text, kind) {
 
 async function solve() {
   const text = editor.getText();
-  if (!text.trim()) return;
+  if (!text.trim()) return false;
   scheduleCheck.flush();
   const {signal, seq} = abortable("solve");
   $("solve").disabled = true;
@@ -131,6 +138,7 @@ async function solve() {
       const warnings = data.display.warnings;
       showBanner(warnings.length ? `Solved with ${warnings.length} warning${warnings.length > 1 ? "s" : ""}: ${warnings.join("; ")}` : "", "note");
       renderResults();
+      return true;
     } else if (status === 422) {
       showDiagnostics(data.errors || [], data.warnings || []);
       $("results").classList.toggle("stale", Boolean(state.answer));
@@ -144,12 +152,43 @@ async function solve() {
   } finally {
     if (seq === state.seq.solve) $("solve").disabled = false;
   }
+  return false;
+}
+
+/**
+ * The text the tools work on: the circuit as last solved, solving the editor's text
+ * first when it has changed. Null when it does not solve.
+ */
+async function solvedText() {
+  if (!state.answer || editor.getText() !== state.solvedText) {
+    if (!(await solve())) return null;
+  }
+  return state.solvedText;
+}
+
+/**
+ * Append a correction's capacitor line(s) to the circuit it was sized for, then solve.
+ * Refused (false) when the editor's text is no longer that circuit.
+ */
+async function appendLines(forText, comment, lines) {
+  if (editor.getText() !== forText) return false;
+  const text = `${forText.replace(/\s*$/, "")}\n\n${comment}\n${lines.join("\n")}\n`;
+  editor.setText(text);
+  save({netlist: text});
+  editor.focusAt(text.split("\n").length - 1, 1);
+  scheduleCheck();
+  return solve();
 }
 
 // ---- results ----------------------------------------------------------------------
 
 function elementNames() {
   return state.answer ? state.answer.display.elements.map((r) => r.name) : [];
+}
+
+function tableOptions() {
+  return {selected: state.selected, sort: state.sort, expanded: state.expanded,
+          onSelect: select, onSort: sortBy, onToggle: toggleGroup};
 }
 
 function renderResults() {
@@ -161,15 +200,58 @@ function renderResults() {
     state.selected = first ? first.name : names[0] || null;
   }
   state.shown = state.shown.filter((n) => names.includes(n) && n !== state.selected);
-  save({selected: state.selected, shown: state.shown});
+  const blocks = (display.groups || []).map((g) => g.name);
+  state.expanded = state.expanded.filter((n) => blocks.includes(n));
+  const owner = blockOf(state.selected);
+  if (owner && !state.expanded.includes(owner)) state.expanded.push(owner);
+  save({selected: state.selected, shown: state.shown, expanded: state.expanded});
   renderFacts(display.facts);
-  renderBranchTable($("branch-table"), display, {
-    selected: state.selected, sort: state.sort, onSelect: select, onSort: sortBy,
-  });
+  renderBranchTable($("branch-table"), display, tableOptions());
   renderNodeTable($("node-table"), display);
   renderSummary(display.summary);
   renderPickerNow();
+  updateTools(display.tools);
   loadViews();
+}
+
+function updateTools(choices) {
+  tools.correction.update(choices);
+  tools.port.update(choices);
+  tools.threePhase.update(choices.groups, state.solvedText);
+  const threePhase = choices.groups.length > 0;
+  tools.tabs.offer("three-phase", threePhase);
+  // The tab last chosen, or the three-phase view for a circuit that has blocks.
+  const wanted = savedTool("panel").tab || (threePhase ? "three-phase" : "correct");
+  if (wanted !== tools.tabs.current && (wanted !== "three-phase" || threePhase)) {
+    tools.tabs.show(wanted, {remember: false});
+  } else if (tools.tabs.current === "three-phase") {
+    tools.threePhase.load();
+  }
+}
+
+/** The three-phase block an element belongs to, or null. */
+function blockOf(name) {
+  if (!state.answer || !name) return null;
+  const g = (state.answer.display.groups || []).find((b) => b.elements.includes(name));
+  return g ? g.name : null;
+}
+
+/** Open or close a block's phase rows; opening one also draws it in the three-phase view. */
+function toggleGroup(name) {
+  const open = state.expanded.includes(name);
+  state.expanded = open ? state.expanded.filter((n) => n !== name) : [...state.expanded, name];
+  save({expanded: state.expanded});
+  renderBranchTable($("branch-table"), state.answer.display, tableOptions());
+  const row = document.querySelector(`#branch-table tr[data-group="${CSS.escape(name)}"]`);
+  if (row) {
+    for (const tr of $("branch-table").tBodies[0].rows) tr.tabIndex = tr === row ? 0 : -1;
+    row.focus({preventScroll: true});
+  }
+  if (!open) {
+    tools.threePhase.choose(name);
+    if (tools.tabs.current === "three-phase") tools.threePhase.load();
+    else tools.tabs.show("three-phase");
+  }
 }
 
 function renderPickerNow() {
@@ -186,9 +268,7 @@ function renderPickerNow() {
 function sortBy(sort) {
   state.sort = sort;
   save({sort});
-  renderBranchTable($("branch-table"), state.answer.display, {
-    selected: state.selected, sort: state.sort, onSelect: select, onSort: sortBy,
-  });
+  renderBranchTable($("branch-table"), state.answer.display, tableOptions());
   const th = document.querySelector(`#branch-table th[data-key="${sort.key}"] button`);
   if (th) th.focus();
 }
@@ -199,6 +279,13 @@ function select(name, {focus = false} = {}) {
   state.selected = name;
   state.shown = state.shown.filter((n) => n !== name);
   save({selected: name, shown: state.shown});
+  const owner = blockOf(name);
+  if (owner && !state.expanded.includes(owner)) {
+    // A phase of a closed block: open it so the selected row can be seen.
+    state.expanded = [...state.expanded, owner];
+    save({expanded: state.expanded});
+    renderBranchTable($("branch-table"), state.answer.display, tableOptions());
+  }
   markSelected($("branch-table"), name, {focus});
   if (changed) {
     renderPickerNow();
@@ -224,7 +311,10 @@ let lastWidths = "";
 const onResize = debounce(() => {
   const sizes = pictureSizes();
   const widths = `${sizes.phasor.width}x${sizes.phasor.height}/${sizes.waveform.width}x${sizes.waveform.height}`;
-  if (widths !== lastWidths && state.answer) loadViews();
+  if (widths !== lastWidths && state.answer) {
+    loadViews();
+    if (tools.tabs.current === "three-phase") tools.threePhase.load();
+  }
   lastWidths = widths;
 }, 250);
 
@@ -290,11 +380,55 @@ function setupCautions(open) {
   $("caution-list").addEventListener("click", () => { if (!footer.classList.contains("open")) show(true); });
 }
 
+function setupTools() {
+  const threePhase = createThreePhase({onSelect: (name) => select(name, {focus: false})});
+  tools = {
+    threePhase,
+    correction: createCorrection({getSolved: solvedText, onAppend: appendLines}),
+    port: createPort({getSolved: solvedText}),
+    tabs: createTabs($("tool-tabs"), {
+      onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
+    }),
+  };
+  tools.tabs.show(savedTool("panel").tab || "correct", {remember: false});
+}
+
+/**
+ * Export sheet: the solved sheet of the circuit as last solved (solving first when the
+ * editor has changed), drawing the elements chosen on the page and the power tools'
+ * results shown for that same circuit.
+ */
+async function exportCurrentSheet() {
+  const button = $("export-sheet");
+  button.disabled = true;
+  try {
+    const text = await solvedText();
+    if (text === null) {
+      showBanner("The circuit does not solve: fix it before exporting the sheet.", "error");
+      return;
+    }
+    const names = [state.selected, ...state.shown].filter(Boolean);
+    const result = await exportSheet(text, names, {
+      correct: tools.correction.sheetRequest(text),
+      port: tools.port.sheetRequest(text),
+    });
+    if (!result.ok) {
+      const data = result.data || {};
+      showDiagnostics(data.errors || [], data.warnings || []);
+      showBanner(`No sheet: ${problemText(data)}`, "error");
+    }
+  } finally {
+    button.disabled = false;
+  }
+}
+
 async function init() {
   editor = createEditor({textarea: $("editor-text"), gutter: $("gutter"), backdrop: $("backdrop")});
   const saved = loadSaved();
   state.selected = saved.selected || null;
   state.shown = Array.isArray(saved.shown) ? saved.shown : [];
+  state.expanded = Array.isArray(saved.expanded) ? saved.expanded.filter((n) => typeof n === "string") : [];
+  setupTools();
   if (saved.sort && typeof saved.sort === "object") state.sort = saved.sort;
 
   const textarea = $("editor-text");
@@ -312,6 +446,7 @@ async function init() {
     }
   });
   $("solve").addEventListener("click", solve);
+  $("export-sheet").addEventListener("click", exportCurrentSheet);
   window.addEventListener("resize", onResize);
   setupCautions(saved.cautionsOpen === true);
   clearViews($("phasor-drawing"), $("waveform-drawing"), $("waveform-facts"),

@@ -37,7 +37,8 @@ export function renderSummary(summary) {
     el("tr", {},
       el("td", {}, row.text.name), el("td", {}, row.text.kind),
       el("td", {class: "num"}, row.text.p), el("td", {class: "num"}, row.text.q),
-      el("td", {class: "num"}, row.text.s), el("td", {class: "num"}, row.text.pf))));
+      el("td", {class: "num"}, row.text.s), el("td", {class: "num"}, row.text.pf),
+      el("td", {class: "num"}, row.text.unbalance))));
   const totals = document.querySelector("#totals-table tbody");
   totals.replaceChildren(...summary.totals.map((row) =>
     el("tr", {},

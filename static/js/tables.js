@@ -34,18 +34,47 @@ function compare(a, b) {
 }
 
 export function sortedRows(rows, sort) {
-  if (!sort || !sort.key || !SORT_BY[sort.key]) return rows.slice();
+  return sortedBy(rows, sort, (row) => row);
+}
+
+/** Items in the order `sort` asks for, reading each item's row through `rowOf`. */
+function sortedBy(items, sort, rowOf) {
+  if (!sort || !sort.key || !SORT_BY[sort.key]) return items.slice();
   const key = SORT_BY[sort.key];
   const dir = sort.dir === -1 ? -1 : 1;
-  return rows
-    .map((row, index) => ({row, index}))
+  return items
+    .map((item, index) => ({item, index}))
     .sort((x, y) => {
-      const a = key(x.row), b = key(y.row);
+      const a = key(rowOf(x.item)), b = key(rowOf(y.item));
       const missing = a === null || a === undefined || b === null || b === undefined;
       const c = compare(a, b);
       return (missing ? c : dir * c) || x.index - y.index;
     })
-    .map((x) => x.row);
+    .map((x) => x.item);
+}
+
+/**
+ * The table's units in circuit order: a plain element, or a three-phase block (its
+ * row, then its phase rows), placed where its first phase appears. Sorting moves
+ * units; a block's phases stay under it in phase order.
+ */
+function tableUnits(display) {
+  const owner = new Map();
+  for (const g of display.groups || []) for (const name of g.elements) owner.set(name, g);
+  const members = new Map();
+  const units = [];
+  for (const row of display.elements) {
+    const g = owner.get(row.name);
+    if (!g) {
+      units.push({row, members: null});
+    } else if (!members.has(g.name)) {
+      members.set(g.name, [row]);
+      units.push({row: g, members: members.get(g.name)});
+    } else {
+      members.get(g.name).push(row);
+    }
+  }
+  return units;
 }
 
 function nextSort(sort, key) {
@@ -54,17 +83,46 @@ function nextSort(sort, key) {
   return {key: null, dir: 1};                 // third click: back to circuit order
 }
 
-/**
- * Draw the branch table. `onSelect(name)` runs when a row is chosen by click or
- * keyboard; `onSort(sort)` when a heading is clicked.
- */
 function moreRow(span, shown, total, onAll) {
   return el("tr", {class: "more"}, el("td", {colspan: span},
     `Showing ${shown} of ${total} rows. `,
     el("button", {type: "button", class: "link", onclick: onAll}, `Show all ${total}`)));
 }
 
-export function renderBranchTable(table, display, {selected, sort, onSelect, onSort, all = false}) {
+function cells(tr, row, columns, folded, {sub = {}, first = null} = {}) {
+  for (const {key} of columns) {
+    const td = el("td", {class: TEXT_COLUMNS.has(key) ? null : "num", dataset: {col: key}});
+    if (key === "name" && first) td.append(first);
+    td.append(row.text[key] ?? "");
+    const below = folded[key] ? row.text[folded[key].key] ?? "" : sub[key] || "";
+    if (below && below !== row.text[key]) td.append(el("div", {class: "sub"}, below));
+    if (row.secondary && (key === "voltage" || key === "current")) {
+      td.append(el("div", {class: "sub"}, `secondary ${row.secondary[key]}`));
+    }
+    tr.append(td);
+  }
+  return tr;
+}
+
+/** A block's row: its totals, and a button that shows or hides its phases. */
+function groupRow(g, columns, folded, open) {
+  const toggle = el("span", {class: "toggle", "aria-hidden": "true"}, open ? "▾" : "▸");
+  const tr = el("tr", {class: "group", dataset: {group: g.name}, "aria-expanded": open ? "true" : "false",
+                       "aria-level": "1", tabindex: "-1",
+                       title: `${open ? "hide" : "show"} the phases of ${g.name} (${g.elements.join(", ")}) and draw it in the three-phase view`});
+  return cells(tr, g, columns, folded, {sub: g.sub || {}, first: toggle});
+}
+
+/** The rows a person can reach: visible ones, in order. */
+const visibleRows = (body) => [...body.rows].filter((r) => !r.hidden && (r.dataset.element || r.dataset.group));
+
+/**
+ * Draw the branch table. `onSelect(name)` runs when an element row is chosen by click
+ * or keyboard; `onSort(sort)` when a heading is clicked; `onToggle(block)` when a
+ * three-phase block's row is opened or closed (`expanded` lists the open ones).
+ */
+export function renderBranchTable(table, display, {selected, sort, onSelect, onSort, onToggle = () => {},
+                                                   expanded = [], all = false}) {
   const allColumns = display.element_columns;
   const folded = Object.fromEntries(Object.entries(FOLDED)
     .filter(([sub, host]) => allColumns.some((c) => c.key === sub) && allColumns.some((c) => c.key === host))
@@ -79,69 +137,105 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
                     onclick: () => onSort(nextSort(sort, key))}, heading));
   }));
   table.tHead.replaceChildren(head);
+  const hasGroups = (display.groups || []).length > 0;
+  table.setAttribute("role", hasGroups ? "treegrid" : "grid");
 
-  const sorted = sortedRows(display.elements, sort);
-  let rows = sorted;
-  if (!all && sorted.length > ROW_LIMIT) {
-    rows = sorted.slice(0, ROW_LIMIT);
-    const picked = sorted.find((r) => r.name === selected);
-    if (picked && !rows.includes(picked)) rows.push(picked);   // the selection stays in view
-  }
-  const body = document.createDocumentFragment();
-  const hasSelected = rows.some((r) => r.name === selected);
-  rows.forEach((row, i) => {
-    const isSelected = row.name === selected;
-    const tr = el("tr", {
-      dataset: {element: row.name},
-      class: isSelected ? "selected" : null,
-      "aria-selected": isSelected ? "true" : "false",
-      tabindex: isSelected || (!hasSelected && i === 0) ? "0" : "-1",
-    });
-    for (const {key} of columns) {
-      const td = el("td", {class: TEXT_COLUMNS.has(key) ? null : "num", dataset: {col: key}},
-                    row.text[key] ?? "");
-      const sub = folded[key] ? row.text[folded[key].key] ?? "" : "";
-      if (sub && sub !== row.text[key]) td.append(el("div", {class: "sub"}, sub));
-      if (row.secondary && (key === "voltage" || key === "current")) {
-        td.append(el("div", {class: "sub"}, `secondary ${row.secondary[key]}`));
-      }
-      tr.append(td);
+  const sorted = sortedBy(tableUnits(display), sort, (u) => u.row);
+  const total = display.elements.length;
+  let units = sorted;
+  if (!all && total > ROW_LIMIT) {
+    units = [];
+    let count = 0;
+    for (const u of sorted) {
+      if (count >= ROW_LIMIT) break;
+      units.push(u);
+      count += u.members ? u.members.length : 1;
     }
-    body.append(tr);
-  });
-  if (!rows.length) body.append(el("tr", {class: "empty"}, el("td", {colspan: columns.length}, "No elements.")));
-  if (rows.length < sorted.length) {
-    body.append(moreRow(columns.length, rows.length, sorted.length, () =>
-      renderBranchTable(table, display, {selected, sort, onSelect, onSort, all: true})));
+    const picked = sorted.find((u) => (u.members || [u.row]).some((r) => r.name === selected));
+    if (picked && !units.includes(picked)) units.push(picked);   // the selection stays in view
+  }
+  const open = new Set(expanded);
+  const body = document.createDocumentFragment();
+  const drawn = [];
+  for (const unit of units) {
+    if (!unit.members) {
+      drawn.push(unit.row);
+      body.append(cells(el("tr", {dataset: {element: unit.row.name}, "aria-level": hasGroups ? "1" : null}),
+                        unit.row, columns, folded));
+      continue;
+    }
+    const isOpen = open.has(unit.row.name);
+    body.append(groupRow(unit.row, columns, folded, isOpen));
+    for (const row of unit.members) {
+      drawn.push(row);
+      const tr = el("tr", {class: "phase", dataset: {element: row.name, inGroup: unit.row.name},
+                           "aria-level": "2", hidden: !isOpen});
+      body.append(cells(tr, row, columns, folded));
+    }
+  }
+  if (!units.length) body.append(el("tr", {class: "empty"}, el("td", {colspan: columns.length}, "No elements.")));
+  if (drawn.length < total) {
+    body.append(moreRow(columns.length, drawn.length, total, () =>
+      renderBranchTable(table, display, {selected, sort, onSelect, onSort, onToggle, expanded, all: true})));
   }
   table.tBodies[0].replaceChildren(body);
+  markSelected(table, selected);
   table.tBodies[0].onclick = (event) => {
-    const tr = event.target.closest("tr[data-element]");
-    if (tr) onSelect(tr.dataset.element, {focus: true});
+    const tr = event.target.closest("tr[data-element], tr[data-group]");
+    if (!tr) return;
+    if (tr.dataset.group) onToggle(tr.dataset.group);
+    else onSelect(tr.dataset.element, {focus: true});
   };
   table.tBodies[0].onkeydown = (event) => {
-    const tr = event.target.closest("tr[data-element]");
+    const tr = event.target.closest("tr[data-element], tr[data-group]");
     if (!tr) return;
+    const group = tr.dataset.group;
     if (event.key === "Enter" || event.key === " ") {
       event.preventDefault();
-      onSelect(tr.dataset.element, {focus: true});
+      if (group) onToggle(group);
+      else onSelect(tr.dataset.element, {focus: true});
+    } else if (event.key === "ArrowRight" || event.key === "ArrowLeft") {
+      const wantOpen = event.key === "ArrowRight";
+      if (group && (tr.getAttribute("aria-expanded") === "true") !== wantOpen) {
+        event.preventDefault();
+        onToggle(group);
+      } else if (!group && tr.dataset.inGroup && !wantOpen) {
+        event.preventDefault();
+        focusRow(table, table.tBodies[0].querySelector(`tr[data-group="${CSS.escape(tr.dataset.inGroup)}"]`));
+      }
     } else if (event.key === "ArrowDown" || event.key === "ArrowUp") {
       event.preventDefault();
-      const next = event.key === "ArrowDown" ? tr.nextElementSibling : tr.previousElementSibling;
-      if (next && next.dataset.element) onSelect(next.dataset.element, {focus: true});
+      const rows = visibleRows(table.tBodies[0]);
+      const next = rows[rows.indexOf(tr) + (event.key === "ArrowDown" ? 1 : -1)];
+      if (!next) return;
+      if (next.dataset.element) onSelect(next.dataset.element, {focus: true});
+      else focusRow(table, next);
     }
   };
 }
 
+/** Move the keyboard focus (the one row with tabindex 0) to `tr`. */
+function focusRow(table, tr) {
+  if (!tr) return;
+  for (const row of table.tBodies[0].rows) row.tabIndex = row === tr ? 0 : -1;
+  tr.focus();
+}
+
 /** Move the selection mark without redrawing the table. */
 export function markSelected(table, name, {focus = false} = {}) {
-  for (const tr of table.tBodies[0].rows) {
-    const on = tr.dataset.element === name;
+  const rows = [...table.tBodies[0].rows].filter((tr) => tr.dataset.element || tr.dataset.group);
+  let reachable = false;
+  for (const tr of rows) {
+    const on = Boolean(tr.dataset.element) && tr.dataset.element === name;
     tr.classList.toggle("selected", on);
     tr.setAttribute("aria-selected", on ? "true" : "false");
-    tr.tabIndex = on ? 0 : -1;
+    tr.tabIndex = on && !tr.hidden ? 0 : -1;
+    reachable = reachable || tr.tabIndex === 0;
     if (on && focus) tr.focus({preventScroll: false});
   }
+  // No visible selected row (inside a closed block): the first row takes the Tab stop.
+  const first = rows.find((tr) => !tr.hidden);
+  if (!reachable && first) first.tabIndex = 0;
 }
 
 export function renderNodeTable(table, display, {all = false} = {}) {

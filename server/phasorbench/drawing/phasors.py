@@ -12,12 +12,13 @@ from __future__ import annotations
 import cmath
 import math
 from collections.abc import Sequence
+from typing import NamedTuple
 
 from .. import formatting as fmt
 from ._svg import (DASH_CURRENT, GRID, GRID_STRONG, INK, PAIRS, nice_ceiling, num, svg_root,
                    tag, text, title)
 
-__all__ = ["phasor_diagram_svg"]
+__all__ = ["phasor_diagram_svg", "three_phase_svg"]
 
 _STYLE = ("svg.pb-phasor .pb-arrow:hover line.pb-shaft{stroke-width:4}"
           "svg.pb-phasor .pb-arrow{cursor:default}")
@@ -81,8 +82,13 @@ def _free_direction(angles: list[float]) -> float:
     return best
 
 
-def _arrow(cx, cy, r, deg, colour, dashed, name, quantity, mag_text, ph_deg) -> str:
-    """One phasor: a shaft from the origin to the exact tip, a filled head, a hover title."""
+def _arrow(cx, cy, r, deg, colour, dashed, name, quantity, mag_text, ph_deg,
+           data: dict | None = None) -> str:
+    """One phasor: a shaft from the origin to the exact tip, a filled head, a hover title.
+
+    ``name`` is the label inside ``V(…)``/``I(…)``; ``data`` the shaft's ``data-*``
+    attributes (default: ``data-element`` = ``name``).
+    """
     x2, y2 = _point(cx, cy, r, deg)
     head = min(11.0, 0.45 * r)
     th = math.radians(deg)
@@ -97,7 +103,8 @@ def _arrow(cx, cy, r, deg, colour, dashed, name, quantity, mag_text, ph_deg) -> 
         tag("line", x1=cx, y1=cy, x2=x2, y2=y2, stroke="transparent", stroke_width=10),
         tag("line", x1=cx, y1=cy, x2=x2, y2=y2, stroke=colour, stroke_width=2.5,
             stroke_dasharray=DASH_CURRENT if dashed else None, class_="pb-shaft",
-            data_element=name, data_quantity=quantity, data_deg=f"{ph_deg:.6g}"),
+            **(data if data is not None else {"data_element": name}),
+            data_quantity=quantity, data_deg=f"{ph_deg:.6g}"),
         tag("polygon", points=pts, fill=colour),
     ]), class_="pb-arrow")
 
@@ -160,17 +167,26 @@ def _merge_tips(tips):
     return out
 
 
-def _angle_note(name: str, v: complex, i: complex, zero_v: bool, zero_i: bool) -> str:
-    """How the first element's current sits against its voltage, in words."""
+def _angle_note(name: str, v: complex, i: complex, zero_v: bool, zero_i: bool,
+                labels: tuple[str, str] | None = None) -> str:
+    """How the first pair's current sits against its voltage, in words.
+
+    ``labels`` names the two phasors when they are not one element's (a delta block's
+    line current against its branch voltage).
+    """
+    if labels is not None:
+        v_words, i_words = f"V({labels[0]})", f"I({labels[1]})"
+    else:
+        v_words, i_words = "V", "I"
     if zero_v or zero_i:
-        return f"{name}: no angle between V and I (a phasor is zero)"
+        return f"{name}: no angle between {v_words} and {i_words} (a phasor is zero)"
     phi = (_deg(i) - _deg(v) + 180.0) % 360.0 - 180.0
     if phi == -180.0:
         phi = 180.0
     if abs(phi) < 0.005:
-        return f"{name}: I in phase with V"
+        return f"{name}: {i_words} in phase with {v_words}"
     word = "leads" if phi > 0 else "lags"
-    return f"{name}: I {word} V by {fmt.degrees(abs(phi))}"
+    return f"{name}: {i_words} {word} {v_words} by {fmt.degrees(abs(phi))}"
 
 
 def _angle_arc(cx, cy, rv, ri, v: complex, i: complex) -> list[str]:
@@ -221,52 +237,142 @@ def phasor_diagram_svg(result: dict, names: Sequence[str], width: int = 520,
     missing = [n for n in names if n not in elements]
     if missing:
         raise ValueError("no element named " + ", ".join(repr(n) for n in missing))
-    data = [(n, _phasor(elements[n], "voltage"), _phasor(elements[n], "current")) for n in names]
-    vmax = max(abs(v) for _, v, _ in data)
-    imax = max(abs(i) for _, _, i in data)
+    data = [_Pair(n, _phasor(elements[n], "voltage"), n, _phasor(elements[n], "current"), n)
+            for n in names]
+    return _diagram(result, data, width, height,
+                    caption="Phasors at {frequency} ({amps} magnitudes)",
+                    label="Phasor diagram of " + ", ".join(names))
+
+
+class _Pair(NamedTuple):
+    """One voltage and one current drawn in the same colour pair.
+
+    ``v_label``/``i_label`` go inside ``V(…)``/``I(…)`` on the picture; ``element`` names
+    the pair in the angle note and, with ``data``, fills the shafts' ``data-*``.
+    """
+
+    v_label: str
+    v: complex
+    i_label: str
+    i: complex
+    element: str
+    data: dict | None = None
+
+
+def _diagram(result: dict, data: list[_Pair], width: int, height: int, caption: str,
+             label: str) -> str:
+    """The picture itself: scales, grid, one colour pair per entry of ``data``."""
+    vmax = max(abs(p.v) for p in data)
+    imax = max(abs(p.i) for p in data)
     v_scale, i_scale = nice_ceiling(vmax), nice_ceiling(imax)
     # Round-off (a current of 1e-17 A beside amperes) is drawn as zero, not as a stub.
     v_zero, i_zero = fmt.ROUND_OFF * vmax, fmt.ROUND_OFF * imax
 
-    any_zero = any(abs(v) <= v_zero or abs(i) <= i_zero for _, v, i in data)
+    any_zero = any(abs(p.v) <= v_zero or abs(p.i) <= i_zero for p in data)
     bottom = _BOTTOM + (18.0 if any_zero else 0.0)  # a third legend line names the dots
     radius = min((width - 2 * _SIDE) / 2, (height - _TOP - bottom) / 2) - _LABEL_PAD
     cx, cy = width / 2, _TOP + (height - _TOP - bottom) / 2
     body, grid_labels = _grid(cx, cy, radius)
     arrows, labels, zeros, angles, tips = [], _Labels(width, height), [], [], []
-    for k, (name, v, i) in enumerate(data):
+    for k, pair in enumerate(data):
         colours = PAIRS[k % len(PAIRS)]
-        for quantity, z, scale, floor, colour in (("voltage", v, v_scale, v_zero, colours[0]),
-                                                  ("current", i, i_scale, i_zero, colours[1])):
+        for quantity, z, name, scale, floor, colour in (
+                ("voltage", pair.v, pair.v_label, v_scale, v_zero, colours[0]),
+                ("current", pair.i, pair.i_label, i_scale, i_zero, colours[1])):
             unit = _UNIT[quantity]
+            attributes = (pair.data or {}).get(quantity)
             if abs(z) <= floor:
                 zeros.append(f"{_SYMBOL[quantity]}({name})")
+                marks = attributes if attributes is not None else {"data_element": name}
                 arrows.append(tag("circle", title(f"{_SYMBOL[quantity]}({name}) = 0 {unit}"),
-                                  cx=cx, cy=cy, r=4.0, fill=colour, data_element=name,
+                                  cx=cx, cy=cy, r=4.0, fill=colour, **marks,
                                   data_quantity=quantity, data_deg="0", data_zero="true"))
                 continue
             r, deg = abs(z) / scale * radius, _deg(z)
             angles.append(deg)
             arrows.append(_arrow(cx, cy, r, deg, colour, quantity == "current", name, quantity,
-                                 fmt.phasor(z, unit), deg))
+                                 fmt.phasor(z, unit), deg, attributes))
             tips.append((r, deg, _SYMBOL[quantity], name, colour))
     arrows += [labels.place(cx, cy, r, deg, words, colour)
                for r, deg, words, colour in _merge_tips(tips)]
 
-    name0, v0, i0 = data[0]
-    zv0, zi0 = abs(v0) <= v_zero, abs(i0) <= i_zero
+    first = data[0]
+    zv0, zi0 = abs(first.v) <= v_zero, abs(first.i) <= i_zero
     if not (zv0 or zi0):
-        body += _angle_arc(cx, cy, abs(v0) / v_scale * radius, abs(i0) / i_scale * radius, v0, i0)
+        body += _angle_arc(cx, cy, abs(first.v) / v_scale * radius,
+                           abs(first.i) / i_scale * radius, first.v, first.i)
     body += [markup for box, markup in grid_labels if not labels.covers(box)]
     body += _ring_labels(cx, cy, radius, _free_direction(angles), v_scale, i_scale)
     body += arrows
     amps = "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
-    body.append(text(_SIDE, 18, f"Phasors at {fmt.eng(result.get('frequency_hz'), 'Hz')} "
-                                f"({amps} magnitudes)", font_weight="bold", class_="pb-caption"))
-    body.append(text(_SIDE, 36, _angle_note(name0, v0, i0, zv0, zi0), class_="pb-angle"))
+    body.append(text(_SIDE, 18, caption.format(frequency=fmt.eng(result.get("frequency_hz"), "Hz"),
+                                               amps=amps),
+                     font_weight="bold", class_="pb-caption"))
+    own = first.v_label == first.i_label == first.element
+    body.append(text(_SIDE, 36, _angle_note(first.element, first.v, first.i, zv0, zi0,
+                                            None if own else (first.v_label, first.i_label)),
+                     class_="pb-angle"))
     body += _legend(height, v_scale, i_scale, zeros)
-    label = "Phasor diagram of " + ", ".join(names)
     return svg_root("pb-phasor", width, height, label, body, style=_STYLE)
+
+
+def three_phase_svg(result: dict, group: str, width: int = 520, height: int = 520) -> str:
+    """The phasor diagram of a three-phase block: its phase voltages and line currents.
+
+    Parameters
+    ----------
+    result : dict
+        A solved-circuit contract dict with ``groups``.
+    group : str
+        A block of ``result["groups"]``; an unknown name raises ``ValueError``.
+    width, height : int
+        Size in px.
+
+    Returns
+    -------
+    str
+        The same picture as `phasor_diagram_svg`, one colour pair per phase. A wye
+        block draws each phase element's voltage (line to star) and current (which is
+        its line current), labelled by phase, ``V(a)``, ``I(a)``; a delta block draws
+        its branch voltages ``V(ab)``, ``V(bc)``, ``V(ca)`` (line to line) with the line
+        currents ``I(a)``, ``I(b)``, ``I(c)``, so the angle note of a delta compares
+        ``I(a)`` with ``V(ab)``. Each shaft carries ``data-group``, ``data-phase``
+        and, when it is an element's own phasor, ``data-element``.
+
+    Examples
+    --------
+    >>> from phasorbench.workflow import solve_text
+    >>> r = solve_text("frequency 50 Hz\\nG: voltage3 a b c -> 0 230 V\\n"
+    ...                "M: load3 wye a b c -> 0 8 + j6 ohm")
+    >>> svg = three_phase_svg(r, "M")
+    >>> svg.count('data-group="M"')
+    6
+    """
+    groups = result.get("groups") or {}
+    if group not in groups:
+        raise ValueError(f"no three-phase block named {group!r}")
+    g, elements = groups[group], result.get("elements", {})
+    data = []
+    for name in g["elements"]:
+        el = elements[name]
+        phase = name.rsplit(".", 1)[-1]
+        line = phase[0]                    # the line a delta branch ab leaves from: a
+        if g.get("connection") == "delta":
+            current = complex(g["line_current"][line]["re"], g["line_current"][line]["im"])
+            i_data = {"data_group": group, "data_phase": line}
+        else:
+            current = _phasor(el, "current")
+            i_data = {"data_element": name, "data_group": group, "data_phase": phase}
+        data.append(_Pair(phase, _phasor(el, "voltage"), line, current, f"{group} phase {phase}",
+                          {"voltage": {"data_element": name, "data_group": group,
+                                       "data_phase": phase},
+                           "current": i_data}))
+    what = "branch voltages" if g.get("connection") == "delta" else "phase voltages"
+    return _diagram(result, data, width, height,
+                    caption=f"{group}: {what}, line currents ({{frequency}}, {{amps}})",
+                    label=f"Three-phase phasor diagram of {group}: {what} "
+                          f"({'line to line' if what[0] == 'b' else 'line to star'}) and line "
+                          "currents")
 
 
 def _ring_labels(cx, cy, radius, deg, v_scale, i_scale) -> list[str]:

@@ -8,11 +8,13 @@ formats a number itself. Input problems raise ``CircuitError``.
 from __future__ import annotations
 
 from .. import workflow
-from ..drawing.phasors import phasor_diagram_svg
+from ..drawing.phasors import phasor_diagram_svg, three_phase_svg
 from ..drawing.waveforms import waveform_svg
 from ..errors import CircuitError, Diagnostic
+from ..tools import correct_power_factor, port_equivalent
 from ..waveforms import sample_element
-from .display import solve_display, waveform_display
+from .display import (correction_display, group_detail, port_display, solve_display,
+                      waveform_display)
 from .limits import check_size
 from .settings import Settings
 
@@ -102,3 +104,62 @@ def phasors_answer(text: str, names: list[str], size: dict, settings: Settings) 
     result = _solved(text, settings)
     picked = _picked(result, names, settings)
     return {"svg": phasor_diagram_svg(result, picked, **size), "elements": picked}
+
+
+def three_phase_answer(text: str, group: str, size: dict, settings: Settings) -> dict:
+    """The three-phase view of one block: ``{"group", "svg", "display"}``.
+
+    ``display`` is ``display.group_detail`` (phase rows, line values, sequence values,
+    totals); ``size`` may hold the picture's ``width`` and ``height`` in px.
+    """
+    result = _solved(text, settings)
+    groups = result.get("groups") or {}
+    if group not in groups:
+        hint = ("blocks of this circuit: " + ", ".join(groups)) if groups else \
+            "this circuit has no three-phase blocks (voltage3, load3)"
+        raise CircuitError([Diagnostic(f"the circuit has no three-phase block named '{group}'",
+                                       hint)])
+    return {"group": group, "svg": three_phase_svg(result, group, **size),
+            "display": group_detail(result, group)}
+
+
+def _read(text: str, settings: Settings):
+    check_size(text, settings.max_elements)
+    return workflow.read_circuit(text, PAGE_FILENAME)
+
+
+def correction_place(at, across):
+    """The tool's ``at`` from the request's ``at`` (node or list) or ``across`` (two nodes)."""
+    if at is not None and across is not None:
+        raise CircuitError([Diagnostic("give the place as 'at' or as 'across', not both",
+                                       "at: a node or three line nodes; across: two nodes")])
+    if across is not None:
+        return tuple(across)
+    if isinstance(at, list):
+        return at[0] if len(at) == 1 else tuple(at)
+    return at or None
+
+
+def correction_answer(text: str, ask: dict, settings: Settings) -> dict:
+    """The exact power-factor correction ``ask`` describes, with its ``display`` strings.
+
+    ``ask`` holds ``source``, ``target``, ``at``, ``across``, ``bank``, ``leading`` and
+    ``rated_voltage`` as the request gave them. The answer is
+    ``tools.correct_power_factor``'s dict plus ``display`` (``display.correction_display``).
+    """
+    circuit = _read(text, settings)
+    result = correct_power_factor(circuit, ask["source"], ask["target"],
+                                  at=correction_place(ask.get("at"), ask.get("across")),
+                                  leading=bool(ask.get("leading")),
+                                  rated_voltage=ask.get("rated_voltage"), bank=ask.get("bank"))
+    answer = dict(result)
+    answer["display"] = correction_display(result)
+    return answer
+
+
+def port_answer(text: str, a: str, b: str, settings: Settings) -> dict:
+    """Thevenin and Norton equivalents seen from nodes ``a`` and ``b``, with ``display``."""
+    result = port_equivalent(_read(text, settings), a, b)
+    answer = dict(result)
+    answer["display"] = port_display(result)
+    return answer

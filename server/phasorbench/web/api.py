@@ -12,6 +12,8 @@ import asyncio
 import functools
 import logging
 
+from typing import Literal
+
 from fastapi import Request
 from pydantic import BaseModel, Field
 
@@ -45,6 +47,44 @@ class ViewBody(CircuitBody):
 
     def size(self) -> dict:
         return {k: v for k, v in (("width", self.width), ("height", self.height)) if v is not None}
+
+
+class GroupViewBody(CircuitBody):
+    """A circuit text, one of its three-phase blocks, and optionally the picture's size."""
+
+    group: str = Field(description="a three-phase block (voltage3 or load3) of the circuit")
+    width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
+                              description="picture width in px")
+    height: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
+                               description="picture height in px")
+
+    def size(self) -> dict:
+        return {k: v for k, v in (("width", self.width), ("height", self.height)) if v is not None}
+
+
+class CorrectionBody(CircuitBody):
+    """A circuit text and the power-factor correction to size in it."""
+
+    source: str = Field(description="an independent voltage or current source, or a voltage3 block")
+    target: float = Field(description="target power factor in (0, 1], lagging unless leading")
+    at: str | list[str] | None = Field(
+        None, description="where the capacitor goes: a node (to ground), or three line nodes "
+                          "for a bank; left out, across the source's terminals (its lines)")
+    across: list[str] | None = Field(None, min_length=2, max_length=2,
+                                     description="two nodes: a capacitor across them")
+    bank: Literal["wye", "delta"] | None = Field(
+        None, description="connection of a three-phase bank (default wye)")
+    leading: bool = Field(False, description="aim at a leading target")
+    rated_voltage: float | None = Field(
+        None, description="rated rms voltage of each unit, V: checks its duty against the "
+                          "continuous limits of IEEE Std 18-2002")
+
+
+class PortBody(CircuitBody):
+    """A circuit text and the two nodes of a port."""
+
+    a: str = Field(description="the port's first node")
+    b: str = Field(description="the port's second node (0 for ground)")
 
 
 def error_item(message: str, hint: str = "") -> dict:
@@ -99,6 +139,32 @@ async def phasors(body: ViewBody, request: Request):
     """The phasor diagram (SVG) of the named elements' voltages and currents."""
     return await run_job(request, answers.phasors_answer, body.netlist, body.elements,
                          body.size())
+
+
+async def three_phase(body: GroupViewBody, request: Request):
+    """The three-phase view of one block: its phasor diagram (phase voltages and line
+    currents) as SVG, and its phase, line and sequence values as display text."""
+    return await run_job(request, answers.three_phase_answer, body.netlist, body.group,
+                         body.size())
+
+
+async def correct(body: CorrectionBody, request: Request):
+    """Size the smallest shunt capacitor that brings a source to a target power factor.
+
+    The answer is the correction result (``capacitance_f``, ``q_var``, ``pf_before``,
+    ``pf_after``, ``formula_capacitance_f``, ``circuit_lines`` …) plus ``display`` text;
+    422 ``{"errors": [...], "warnings": [...]}`` for a circuit with errors or a target
+    a capacitor there cannot reach.
+    """
+    ask = body.model_dump(include={"source", "target", "at", "across", "bank", "leading",
+                                   "rated_voltage"})
+    return await run_job(request, answers.correction_answer, body.netlist, ask)
+
+
+async def port(body: PortBody, request: Request):
+    """Thevenin and Norton equivalents seen from nodes ``a`` and ``b``, with the matched
+    load and the best resistive load, plus ``display`` text; 422 for unknown nodes."""
+    return await run_job(request, answers.port_answer, body.netlist, body.a, body.b)
 
 
 async def samples(request: Request):

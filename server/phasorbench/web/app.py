@@ -19,7 +19,7 @@ from starlette.routing import Mount
 from starlette.staticfiles import StaticFiles
 
 from .. import __version__
-from . import api, pages
+from . import api, pages, sheet_routes
 from .guards import HostOriginGuard
 from .jsonsafe import StrictJSONResponse
 from .settings import Settings
@@ -44,7 +44,11 @@ def _routes(settings: Settings) -> list:
         post("/api/solve", api.solve, "Solve a circuit (results contract + display text)"),
         post("/api/waveforms", api.waveforms, "Sample v(t), i(t), p(t) of elements, with SVG"),
         post("/api/phasors", api.phasors, "Phasor diagram SVG of elements"),
-        # POST /api/sheet (the exported solved sheet) goes here, next to the other posts.
+        post("/api/three-phase", api.three_phase,
+             "Three-phase view of a block: phasor SVG, phase, line and sequence values"),
+        post("/api/correct", api.correct, "Size the power-factor correction capacitor of a source"),
+        post("/api/port", api.port, "Thevenin and Norton equivalents seen from two nodes"),
+        *sheet_routes.router.routes,          # POST /api/sheet: the solved sheet download
         APIRoute("/api/samples", api.samples, methods=["GET"], summary="List the sample circuits",
                  response_class=StrictJSONResponse),
         Mount("/static", StaticFiles(directory=settings.static_dir), name="static"),

@@ -1,17 +1,18 @@
-"""The ``display`` field of a solve answer: every string the page shows, made once here.
+"""The ``display`` field of an answer: every string the page shows, made once here.
 
 The page only places these strings; numbers are formatted by ``formatting.py`` alone,
 so the page, the terminal and the sheet read the same. Besides the branch and node
 rows this holds the header facts (frequency, RMS/peak, sign convention, power-balance
-check) and the power summary (each source, totals by kind of element).
+check), the power summary (each source, totals by kind of element), the three-phase
+block rows and view, and the answers of the power tools (correction, port).
 """
 
 from __future__ import annotations
 
 import math
 
-from ..formatting import (ELEMENT_COLUMNS, NODE_COLUMNS, element_rows, eng, node_rows,
-                          plain, power_factor)
+from ..formatting import (ELEMENT_COLUMNS, MISSING, NODE_COLUMNS, ROUND_OFF, element_rows, eng,
+                          node_rows, phasor, plain, power_factor, rect)
 
 #: Used only when a result carries no balance verdict of its own (results.py gives one):
 #: the residual may be this fraction of the summed |S| (double-precision round-off
@@ -118,7 +119,8 @@ def power_summary(result: dict) -> dict:
                         "p": eng(g.get("p_w"), "W", floor=floor),
                         "q": eng(g.get("q_var"), "var", floor=floor),
                         "s": eng(g.get("s_va"), "VA", floor=floor),
-                        "pf": power_factor(g.get("pf"), g.get("pf_sense"))}}
+                        "pf": power_factor(g.get("pf"), g.get("pf_sense")),
+                        "unbalance": _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR)}}
               for name, g in (result.get("groups") or {}).items()]
     return {"sources": sources, "totals": totals, "groups": groups}
 
@@ -129,10 +131,12 @@ def solve_display(result: dict) -> dict:
         "facts": facts(result),
         "element_columns": [{"key": k, "heading": h} for k, h in ELEMENT_COLUMNS],
         "elements": element_rows(result),
+        "groups": group_rows(result),
         "node_columns": [{"key": k, "heading": h} for k, h in NODE_COLUMNS],
         "nodes": node_rows(result),
         "summary": power_summary(result),
         "warnings": [w.get("message", "") for w in result.get("warnings", [])],
+        "tools": tool_choices(result),
     }
 
 
@@ -153,3 +157,327 @@ def waveform_display(samples: dict) -> dict:
         "absorbed_energy": eng(samples.get("absorbed_energy_j"), "J", floor=floor * period),
         "period": eng(period, "s"),
     }
+
+
+# --- three-phase blocks ---------------------------------------------------------------
+
+#: A voltage unbalance below this is round-off of a balanced solve (1e-16 of V₁), shown 0.
+_UNBALANCE_FLOOR = 1e-12
+
+_SEQUENCE_NAMES = (("zero", "zero (0)"), ("positive", "positive (1)"), ("negative", "negative (2)"))
+
+
+def _mag(ph) -> float:
+    return _number(ph.get("mag")) if isinstance(ph, dict) else 0.0
+
+
+def _floors(result: dict) -> tuple[float, float, float]:
+    """Round-off floors of power, voltage and current, as the branch rows use them."""
+    elements = result.get("elements", {}).values()
+    s = max((_number(e.get("s_va")) for e in elements), default=0.0)
+    v = max([_mag(e.get("voltage")) for e in elements] +
+            [_mag(n) for n in result.get("nodes", {}).values()], default=0.0)
+    i = max((_mag(e.get("current")) for e in elements), default=0.0)
+    return ROUND_OFF * s, ROUND_OFF * v, ROUND_OFF * i
+
+
+def _percent(fraction, floor: float = 0.0, digits: int = 3) -> str:
+    if fraction is None or not math.isfinite(fraction):
+        return MISSING
+    if abs(fraction) < floor or fraction == 0:
+        return "0 %"
+    return f"{plain(100.0 * fraction, digits)} %"
+
+
+def _signed_percent(fraction) -> str:
+    """``+0.1234 %`` / ``-0.5 %``: a change or a difference, its sign always shown."""
+    text = _percent(fraction, digits=4)
+    return text if text.startswith(("-", MISSING)) else "+" + text
+
+
+def _group_terminals(name: str, g: dict) -> str:
+    """``a b c → n`` for a wye (to its star point), ``a b c`` for a delta."""
+    lines = " ".join(g.get("lines", []))
+    if g.get("connection") == "delta":
+        return lines
+    return f"{lines} → {g['star']}" if g.get("star") else lines
+
+
+def _own_star(name: str, g: dict) -> bool:
+    """A wye block written without ``-> n`` has a star point of its own, no neutral wire."""
+    return g.get("star") == f"{name}.n"
+
+
+def _no_neutral(name: str, g: dict) -> str | None:
+    """Why a block has no neutral current (a delta, or a wye with a star of its own), or None."""
+    if g.get("connection") == "delta":
+        return "no neutral (delta)"
+    if _own_star(name, g) or g.get("neutral_current") is None:
+        return "no neutral (own star)"
+    return None
+
+
+def group_rows(result: dict) -> list[dict]:
+    """One row per three-phase block for the branch table, in the shape of a branch row.
+
+    ``{"name", "kind", "connection", "elements", "values": {...}, "text": {...},
+    "sub": {...}}``: ``values`` holds the totals (``p_w``, ``q_var``, ``s_va``, ``pf``,
+    ``voltage_unbalance``; the phasor keys are None) for sorting; ``text`` the strings of
+    every branch column (the voltage column says the voltage unbalance, the current column
+    the neutral current); ``sub`` a second line under some cells.
+    """
+    s_floor, _, i_floor = _floors(result)
+    rows = []
+    for name, g in (result.get("groups") or {}).items():
+        values = {f"{q}_{k}": None for q in ("v", "i", "z") for k in ("mag", "deg", "re", "im")}
+        values.update({key: g.get(key) for key in ("p_w", "q_var", "s_va", "pf")})
+        values["voltage_unbalance"] = g.get("voltage_unbalance")
+        connection = g.get("connection", "")
+        # The magnitude only: the row stays as narrow as a phase's row (the angle is in
+        # the three-phase view).
+        neutral = None if _no_neutral(name, g) else eng(_mag(g["neutral_current"]), "A",
+                                                        floor=i_floor)
+        rows.append({
+            "name": name, "kind": g.get("kind"), "connection": connection,
+            "elements": list(g.get("elements", [])), "lines": list(g.get("lines", [])),
+            "from": " ".join(g.get("lines", [])), "to": g.get("star") or "",
+            "values": values,
+            "text": {"name": name, "kind": g.get("kind", ""),
+                     "terminals": _group_terminals(name, g),
+                     "voltage": _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR),
+                     "current": neutral or MISSING,
+                     "impedance_rect": "", "impedance_polar": "",
+                     "p": eng(g.get("p_w"), "W", floor=s_floor),
+                     "q": eng(g.get("q_var"), "var", floor=s_floor),
+                     "s": eng(g.get("s_va"), "VA", floor=s_floor),
+                     "pf": power_factor(g.get("pf"), g.get("pf_sense"))},
+            "sub": {"name": f"{len(g.get('elements', []))} phases", "kind": connection,
+                    "voltage": "unbalance V₂/V₁",
+                    "current": "neutral |I_N|" if neutral else "no neutral",
+                    "p": "block total"},
+        })
+    return rows
+
+
+def group_detail(result: dict, name: str) -> dict:
+    """What the three-phase view lists beside its picture, as strings.
+
+    ``{"name", "heading", "note", "phases": [branch row], "lines": [{"line", "current",
+    "pair", "voltage"}], "sequence": [{"name", "voltage", "current"}], "facts": [{"term",
+    "value"}]}``; the phase rows are the branch table's own rows of the block's elements.
+    """
+    g = result["groups"][name]
+    s_floor, v_floor, i_floor = _floors(result)
+    members = set(g.get("elements", []))
+    phases = [row for row in element_rows(result) if row["name"] in members]
+    pairs = ("ab", "bc", "ca")
+    line_current, line_voltage = g.get("line_current", {}), g.get("line_voltage", {})
+    lines = [{"line": line, "current": phasor(line_current.get(phase), "A", floor=i_floor),
+              "pair": f"{g['lines'][k]}–{g['lines'][(k + 1) % 3]}",
+              "voltage": phasor(line_voltage.get(pairs[k]), "V", floor=v_floor)}
+             for k, (phase, line) in enumerate(zip("abc", g.get("lines", [])))]
+    sequence = [{"name": label,
+                 "voltage": phasor(g["sequence_voltage"][key], "V", floor=v_floor),
+                 "current": phasor(g["sequence_current"][key], "A", floor=i_floor)}
+                for key, label in _SEQUENCE_NAMES]
+    what = "branch" if g.get("connection") == "delta" else "phase"
+    missing = _no_neutral(name, g)
+    facts = [
+        {"term": "P total", "value": eng(g.get("p_w"), "W", floor=s_floor)},
+        {"term": "Q total", "value": eng(g.get("q_var"), "var", floor=s_floor)},
+        {"term": "|S| total", "value": eng(g.get("s_va"), "VA", floor=s_floor)},
+        {"term": "power factor", "value": power_factor(g.get("pf"), g.get("pf_sense"))},
+        {"term": "voltage unbalance V₂/V₁",
+         "value": _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR)},
+        {"term": "neutral current",
+         "value": missing or f"I_N = {phasor(g['neutral_current'], 'A', floor=i_floor)}"},
+    ]
+    return {
+        "name": name,
+        "heading": f"{name}: {g.get('kind', '')} {g.get('connection', '')}, lines "
+                   f"{_group_terminals(name, g)}",
+        "note": (f"Sequence values are Fortescue's of the {what} voltages and currents, "
+                 "phase a the reference (a = 1∠120°); totals use the passive sign."),
+        "phases": phases, "lines": lines, "sequence": sequence, "facts": facts,
+    }
+
+
+def tool_choices(result: dict) -> dict:
+    """What the page's tools offer to pick: sources to correct, nodes, three-phase blocks.
+
+    ``{"sources": [{"name", "kind", "three_phase", "lines", "label"}], "nodes": [...],
+    "groups": [{"name", "label"}]}``. A correctable source is an independent voltage or
+    current source of its own, or a ``voltage3`` block (its phases are not offered alone).
+    """
+    sources = []
+    for name, el in result.get("elements", {}).items():
+        if el.get("kind") in ("voltage", "current") and not el.get("group"):
+            sources.append({"name": name, "kind": el["kind"], "three_phase": False,
+                            "lines": [el.get("from"), el.get("to")],
+                            "label": f"{name} ({el['kind']} {el.get('from')} → {el.get('to')})"})
+    groups = []
+    for name, g in (result.get("groups") or {}).items():
+        groups.append({"name": name, "label": f"{name} ({g.get('kind', '')} "
+                                              f"{g.get('connection', '')})"})
+        if g.get("kind") == "voltage3":
+            sources.append({"name": name, "kind": "voltage3", "three_phase": True,
+                            "lines": list(g.get("lines", [])),
+                            "label": f"{name} (voltage3 {_group_terminals(name, g)})"})
+    return {"sources": sources, "nodes": list(result.get("nodes", {})), "groups": groups}
+
+
+# --- power tools ------------------------------------------------------------------------
+
+
+def _fact(key: str, term: str, value: str, flag: str | None = None) -> dict:
+    """One line of a tool's answer; ``flag`` ("ok", "warn") always comes with words too."""
+    return {"key": key, "term": term, "value": value, "flag": flag}
+
+
+def _supply_current(current) -> str:
+    if isinstance(current, dict) and "mag" in current:
+        return phasor(current, "A")
+    return ", ".join(f"{k} {phasor(v, 'A')}" for k, v in (current or {}).items())
+
+
+#: The exact answer is found to a few units of double precision and checked by a solve:
+#: a difference from the ideal-bus formula below this share of it is round-off.
+_SAME_AS_FORMULA = 1e-9
+
+
+def _difference_text(r: dict, each: str) -> str:
+    rel = r["formula_difference_rel"]
+    if rel is None or abs(rel) < _SAME_AS_FORMULA:
+        return "none: nothing lies between the source and this place, so the formula is exact"
+    return (f"{eng(r['formula_difference_f'], 'F', 4)}{each} ({_signed_percent(rel)} of the "
+            "exact value): the line and transformer impedance in between")
+
+
+_IEEE18_NAMES = {"voltage_rms": "rms voltage", "voltage_peak": "peak voltage",
+                 "current_rms": "rms current", "kvar": "reactive power"}
+
+
+def correction_display(r: dict) -> dict:
+    """Every string the correction panel shows of a ``correct_power_factor`` result.
+
+    ``{"comment", "heading", "method", "facts": [{"key", "term", "value", "flag"}],
+    "capacitors": [{"name", "terminals", "voltage_before", "voltage_after", "current",
+    "q"}], "lines", "warnings": [{"message", "hint"}], "cautions": [{"title", "detail"}],
+    "scope_note"}``. ``comment`` and ``lines`` are what the page appends to the circuit
+    (a ``#`` comment line saying what was sized, then the capacitor lines); ``cautions``
+    are those with this result's own numbers (stored charge first).
+    """
+    units = r["units"]
+    each = " each" if units > 1 else ""
+    before, after = r["supply_before"], r["supply_after"]
+    connection = r["place"]["connection"]
+    count = f"{units} unit{'s' if units > 1 else ''}" + ("" if connection == "single"
+                                                         else f", {connection} bank")
+    facts = [
+        _fact("capacitance", "capacitance", f"{eng(r['capacitance_f'], 'F', 6)}{each} ({count})"),
+        _fact("q", "reactive power supplied", f"{eng(r['q_var'], 'var')} at the voltage it sees"),
+        _fact("pf", "power factor", f"{power_factor(r['pf_before'], r['pf_sense_before'])} → "
+                                    f"{power_factor(r['pf_after'], r['pf_sense_after'])} (target "
+                                    f"{power_factor(r['target_pf'], r['target_sense'])})"),
+        _fact("supply", "supply P + jQ",
+              f"{eng(before['p_w'], 'W')} + {eng(before['q_var'], 'var')} → "
+              f"{eng(after['p_w'], 'W')} + {eng(after['q_var'], 'var')}"),
+        _fact("supply_current", "supply current", f"{_supply_current(before['current'])} → "
+                                                  f"{_supply_current(after['current'])}"),
+        _fact("formula", "textbook estimate",
+              f"{eng(r['formula_capacitance_f'], 'F', 6)}{each} from Qc = P(tanφ1 − tanφ2) = "
+              f"{eng(r['formula_q_var'], 'var')}, C = Qc/(ωV²) on an ideal bus"),
+        _fact("difference", "exact − estimate", _difference_text(r, each)),
+    ]
+    if units == 1:
+        facts += [_fact("voltage", "voltage there", f"{phasor(r['voltage_before'], 'V')} → "
+                                                    f"{phasor(r['voltage_after'], 'V')} "
+                                                    f"({_signed_percent(r['voltage_rise_rel'])})"),
+                  _fact("capacitor_current", "capacitor current",
+                        phasor(r["capacitor_current"], "A"))]
+    else:
+        facts += [_fact("voltage", "voltage change", f"{_signed_percent(r['voltage_rise_rel'])} "
+                                                     "at the most raised unit"),
+                  _fact("capacitor_current", "bank line currents",
+                        _supply_current(r["bank_line_current"]))]
+    if r["harmonic_order"] is None:
+        facts.append(_fact("resonance", "parallel resonance",
+                           "none estimated (no inductive network behind this place)"))
+    else:
+        near = r.get("near_harmonic")
+        words = (f"h ≈ {plain(r['harmonic_order'], 4)} ({eng(r['resonance_hz'], 'Hz')}) with the "
+                 f"network behind it: X_C {eng(r['capacitor_reactance_ohm'], 'Ω')}, "
+                 f"X_th {eng(r['network_reactance_ohm'], 'Ω')}")
+        if near:
+            words += f" — ▲ within 10 % of the {near}{'rd' if near == 3 else 'th'} harmonic"
+        facts.append(_fact("resonance", "parallel resonance", words, "warn" if near else None))
+    check = r.get("ieee18")
+    if check is not None:
+        duty = ", ".join(f"{_IEEE18_NAMES.get(k, k)} {_percent(v, digits=4)} (limit "
+                         f"{_percent(check['limits'][k])})" for k, v in check["duty"].items())
+        state = ("✓ within the continuous limits" if check["ok"] else "▲ EXCEEDS: " +
+                 ", ".join(_IEEE18_NAMES.get(k, k) for k in check["exceeded"]))
+        facts.append(_fact("ieee18", f"{check['edition']} duty",
+                           f"{state}; rated {eng(check['rated_voltage_v'], 'V')}, "
+                           f"{eng(check['rated_q_var'], 'var')} per unit at "
+                           f"{eng(check['rated_frequency_hz'], 'Hz')}; {check['unit']} runs at "
+                           f"{eng(check['operating_voltage_v'], 'V')}: {duty}",
+                           "ok" if check["ok"] else "warn"))
+    discharge = r["discharge"]
+    energy = f"{eng(r['stored_energy_j'], 'J')} in all"
+    if discharge.get("resistor_max_ohm") is not None:
+        energy += (f"; discharge resistor ≤ {eng(discharge['resistor_max_ohm'], 'Ω')} per unit "
+                   f"({discharge['clause']}: {eng(discharge['residual_v'], 'V')} within "
+                   f"{plain(discharge['seconds'] / 60)} min)")
+    facts.append(_fact("stored_energy", "stored energy", energy, "warn"))
+    capacitors = [{"name": c["name"], "terminals": f"{c['from']} → {c['to']}",
+                   "voltage_before": phasor(c["voltage_before"], "V"),
+                   "voltage_after": phasor(c["voltage_after"], "V"),
+                   "current": phasor(c["current"], "A"), "q": eng(c["q_var"], "var")}
+                  for c in r["capacitors"]]
+    target = power_factor(r["target_pf"], r["target_sense"])
+    return {
+        "comment": f"# power-factor correction of {r['source']} to {target}, "
+                   f"{eng(r['capacitance_f'], 'F', 6)}{each} at {r['place']['description']}",
+        "heading": f"{r['source']}: {'capacitor' if units == 1 else 'capacitor bank'} at "
+                   f"{r['place']['description']}",
+        "method": f"exact for the circuit as drawn, by {r['method']}; checked by solving the "
+                  "corrected circuit",
+        "facts": facts, "capacitors": capacitors, "lines": list(r["circuit_lines"]),
+        "warnings": [{"message": w.get("message", ""), "hint": w.get("hint", "")}
+                     for w in r.get("warnings", [])],
+        "cautions": [{"title": c["title"], "detail": c["detail"]}
+                     for c in r.get("cautions", []) if c.get("detail")],
+        "scope_note": r.get("scope_note", ""),
+    }
+
+
+def port_display(r: dict) -> dict:
+    """Every string the port panel shows of a ``port_equivalent`` result.
+
+    ``{"heading", "facts": [{"key", "term", "value", "flag"}], "notes": [...]}``.
+    """
+    a, b = r["a"], r["b"]
+    facts = []
+    if r.get("thevenin_v") is not None:
+        facts.append(_fact("thevenin_v", "Thevenin voltage",
+                           f"{phasor(r['thevenin_v'], 'V')} (open-circuit V({a}) − V({b}))"))
+    if r.get("thevenin_z") is not None:
+        facts.append(_fact("thevenin_z", "Thevenin impedance",
+                           f"{rect(r['thevenin_z'], 'Ω')} = {phasor(r['thevenin_z'], 'Ω')}"))
+    if r.get("norton_i") is not None:
+        facts.append(_fact("norton_i", "Norton current",
+                           f"{phasor(r['norton_i'], 'A')} ({a} → {b} through a short)"))
+    if r.get("norton_y") is not None:
+        facts.append(_fact("norton_y", "Norton admittance", rect(r["norton_y"], "S")))
+    if r.get("matched_load_z") is not None:
+        facts.append(_fact("matched", "matched load (Z_th*)",
+                           f"{rect(r['matched_load_z'], 'Ω')} takes {eng(r['max_power_w'], 'W')},"
+                           " the most any load can"))
+    if r.get("resistive_load_ohm") is not None:
+        facts.append(_fact("resistive", "best resistor (|Z_th|)",
+                           f"{eng(r['resistive_load_ohm'], 'Ω')} takes "
+                           f"{eng(r['resistive_power_w'], 'W')}"))
+    amps = "RMS" if r.get("amplitudes", "rms") == "rms" else "peak"
+    return {"heading": f"Port {a} → {b} at {eng(r.get('frequency_hz'), 'Hz')} ({amps} phasors)",
+            "facts": facts, "notes": list(r.get("notes", []))}

@@ -1,0 +1,116 @@
+// The Tools panel: tabs (three-phase view, power-factor correction, port equivalent)
+// and the small pieces the three tools share. Every string shown comes from the
+// server's `display` fields; this module only places them.
+
+import {el} from "./dom.js";
+import {loadSaved, save} from "./store.js";
+
+/** Put `parts` in `container`, leaving out the missing ones (null, undefined, false). */
+export function fill(container, ...parts) {
+  container.replaceChildren(...parts.flat().filter((p) => p !== null && p !== undefined && p !== false));
+}
+
+/** The saved settings of one tool (or of the panel, key "panel"). */
+export function savedTool(key) {
+  const tools = loadSaved().tools;
+  const value = tools && typeof tools === "object" ? tools[key] : null;
+  return value && typeof value === "object" ? value : {};
+}
+
+/** Merge `patch` into the saved settings of one tool. */
+export function saveTool(key, patch) {
+  const tools = loadSaved().tools;
+  const all = tools && typeof tools === "object" ? tools : {};
+  save({tools: {...all, [key]: {...(all[key] || {}), ...patch}}});
+}
+
+/**
+ * Refill a <select> with `options` ([{value, label}]), keeping `wanted` (or the
+ * current value) when it is still offered, else the first option (or `fallback`).
+ */
+export function fillSelect(select, options, wanted, fallback = null) {
+  const keep = wanted ?? select.value;
+  select.replaceChildren(...options.map((o) => el("option", {value: o.value}, o.label)));
+  const values = options.map((o) => o.value);
+  if (values.includes(keep)) select.value = keep;
+  else if (fallback !== null && values.includes(fallback)) select.value = fallback;
+  else if (values.length) select.value = values[0];
+  return select.value;
+}
+
+/** The facts of a tool's answer as a definition list; a flag is a word and a mark too. */
+export function factList(facts, className = "tool-facts") {
+  return el("dl", {class: className}, facts.map((f) =>
+    el("div", {class: f.flag ? `flag-${f.flag}` : null, dataset: {key: f.key}},
+      el("dt", {}, f.term), el("dd", {}, f.value))));
+}
+
+/** The API's errors as a short list under a tool's form. */
+export function problemList(data) {
+  const errors = (data && data.errors) || [{message: "unknown problem", hint: ""}];
+  return el("ul", {class: "tool-problems", role: "alert"}, errors.map((e) =>
+    el("li", {}, el("span", {class: "mark", "aria-hidden": "true"}, "✖ "),
+       e.line ? `line ${e.line}: ` : "", e.message,
+       e.hint ? el("span", {class: "fix"}, ` — ${e.hint}`) : null)));
+}
+
+/** A small table from rows of strings: headings [text], rows [[cell, …]]. */
+export function smallTable(caption, headings, rows, numeric = () => true) {
+  return el("table", {class: "data small"},
+    caption ? el("caption", {}, caption) : null,
+    el("thead", {}, el("tr", {}, headings.map((h, k) =>
+      el("th", {scope: "col", class: k && numeric(k) ? "num" : null}, h)))),
+    el("tbody", {}, rows.map((cells) => el("tr", {}, cells.map((c, k) =>
+      el(k ? "td" : "th", {scope: k ? null : "row", class: k && numeric(k) ? "num" : null}, c))))));
+}
+
+/**
+ * The tab list of the Tools panel (WAI-ARIA tabs: arrow keys move between tabs,
+ * Home/End to the ends). `onShow(name)` runs when a tab is shown.
+ */
+export function createTabs(root, {onShow}) {
+  const tabs = () => [...root.querySelectorAll('[role="tab"]')].filter((t) => !t.hidden);
+  let current = null;
+
+  function show(name, {focus = false, remember = true} = {}) {
+    const all = [...root.querySelectorAll('[role="tab"]')];
+    const tab = all.find((t) => t.dataset.tool === name && !t.hidden) || tabs()[0];
+    if (!tab) return;
+    for (const t of all) {
+      const on = t === tab;
+      t.setAttribute("aria-selected", on ? "true" : "false");
+      t.tabIndex = on ? 0 : -1;
+      document.getElementById(t.getAttribute("aria-controls")).hidden = !on;
+    }
+    if (focus) tab.focus();
+    current = tab.dataset.tool;
+    if (remember) saveTool("panel", {tab: current});
+    onShow(current);
+  }
+
+  root.addEventListener("click", (event) => {
+    const tab = event.target.closest('[role="tab"]');
+    if (tab) show(tab.dataset.tool);
+  });
+  root.addEventListener("keydown", (event) => {
+    const tab = event.target.closest('[role="tab"]');
+    if (!tab) return;
+    const list = tabs();
+    const at = list.indexOf(tab);
+    const to = {ArrowRight: at + 1, ArrowLeft: at - 1, Home: 0, End: list.length - 1}[event.key];
+    if (to === undefined) return;
+    event.preventDefault();
+    show(list[(to + list.length) % list.length].dataset.tool, {focus: true});
+  });
+
+  return {
+    show,
+    get current() { return current; },
+    /** Show or hide a tab; a hidden current tab gives way to the first one left. */
+    offer(name, on) {
+      const tab = root.querySelector(`[role="tab"][data-tool="${name}"]`);
+      tab.hidden = !on;
+      if (!on && current === name) show(tabs()[0].dataset.tool, {remember: false});
+    },
+  };
+}
