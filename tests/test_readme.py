@@ -1,0 +1,43 @@
+"""The README documents what the code declares: server settings, cautions, commands.
+
+The source of truth is the code (settings.py, cautions.py, the CLI parser); the README
+must not drift from it.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from phasorbench.cautions import CAUTIONS
+from phasorbench.cli import build_parser
+from phasorbench.web.settings import SETTINGS_HELP
+
+ROOT = Path(__file__).resolve().parents[1]
+README = (ROOT / "README.md").read_text(encoding="utf-8")
+
+
+@pytest.mark.parametrize("setting", sorted(SETTINGS_HELP))
+def test_every_server_setting_is_documented(setting):
+    assert f"`{setting}`" in README
+
+
+@pytest.mark.parametrize("title", [title for title, _ in CAUTIONS])
+def test_every_caution_is_in_the_readme(title):
+    assert title in README
+
+
+def test_every_command_is_documented():
+    commands = build_parser()._subparsers._group_actions[0].choices
+    for name in commands:
+        assert f"phasorbench {name}" in README, name
+
+
+def test_the_two_setup_commands_and_ci_agree():
+    # the README's test command is what CI runs
+    assert "bash .ci/run" in README
+    ci = (ROOT / ".ci" / "run").read_text()
+    assert ".venv/bin/python -m pytest" in ci and ".venv/bin/python -m pytest" in README
+    assert "phasorbench serve --sample" in README
+    assert (ROOT / "samples" / "bakery-feeder.circuit").exists()
