@@ -62,8 +62,9 @@ class GroupViewBody(CircuitBody):
         return {k: v for k, v in (("width", self.width), ("height", self.height)) if v is not None}
 
 
-class CorrectionBody(CircuitBody):
-    """A circuit text and the power-factor correction to size in it."""
+class CorrectionAsk(BaseModel):
+    """A power-factor correction to size: the fields of ``POST /api/correct`` after the
+    circuit (the sheet asks for one in the same words)."""
 
     source: str = Field(description="an independent voltage or current source, or a voltage3 block")
     target: float = Field(description="target power factor in (0, 1], lagging unless leading")
@@ -80,11 +81,19 @@ class CorrectionBody(CircuitBody):
                           "continuous limits of IEEE Std 18-2002")
 
 
-class PortBody(CircuitBody):
-    """A circuit text and the two nodes of a port."""
+class PortAsk(BaseModel):
+    """The two nodes of a port: the fields of ``POST /api/port`` after the circuit."""
 
     a: str = Field(description="the port's first node")
     b: str = Field(description="the port's second node (0 for ground)")
+
+
+class CorrectionBody(CircuitBody, CorrectionAsk):
+    """A circuit text and the power-factor correction to size in it."""
+
+
+class PortBody(CircuitBody, PortAsk):
+    """A circuit text and the two nodes of a port."""
 
 
 def error_item(message: str, hint: str = "") -> dict:

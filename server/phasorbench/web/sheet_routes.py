@@ -11,15 +11,14 @@ from __future__ import annotations
 import asyncio
 import functools
 import logging
-from typing import Literal
 
 from fastapi import APIRouter, Request
 from fastapi.responses import Response
-from pydantic import BaseModel, Field
+from pydantic import Field
 
 from ..errors import CircuitError
 from . import answers
-from .api import INTERNAL_ERROR, CircuitBody, error_response
+from .api import INTERNAL_ERROR, CircuitBody, CorrectionAsk, PortAsk, error_response
 from .jsonsafe import StrictJSONResponse
 from .limits import check_size
 from .settings import Settings
@@ -29,28 +28,6 @@ __all__ = ["CorrectionAsk", "PortAsk", "SheetBody", "router", "sheet_answer"]
 log = logging.getLogger("phasorbench.web")
 
 router = APIRouter()
-
-
-class CorrectionAsk(BaseModel):
-    """A power-factor correction to add to the sheet: the fields of ``POST /api/correct``."""
-
-    source: str = Field(description="an independent voltage or current source, or a voltage3 block")
-    target: float = Field(description="target power factor in (0, 1], lagging unless leading")
-    at: str | list[str] | None = Field(
-        None, description="a node (to ground) or three line nodes for a bank; left out, "
-                          "across the source's terminals")
-    across: list[str] | None = Field(None, min_length=2, max_length=2,
-                                     description="two nodes: a capacitor across them")
-    bank: Literal["wye", "delta"] | None = Field(None, description="connection of a bank")
-    leading: bool = Field(False, description="aim at a leading target")
-    rated_voltage: float | None = Field(None, description="rated rms voltage of each unit, V")
-
-
-class PortAsk(BaseModel):
-    """A port to add to the sheet: the fields of ``POST /api/port``."""
-
-    a: str = Field(description="the port's first node")
-    b: str = Field(description="the port's second node (0 for ground)")
 
 
 class SheetBody(CircuitBody):
