@@ -411,3 +411,16 @@ def test_large_ladder_power_balance():
     r = solve("\n".join(lines))
     assert r["balance"]["ok"]
     assert r["balance"]["relative"] < 1e-12
+
+
+def test_ill_conditioned_equations_give_a_warning():
+    # formula: two nodes tied by 1 µΩ, each to ground through 1 GΩ: the nodal matrix
+    # [[1e6 + 1e-9, -1e6], [-1e6, 1e6 + 1e-9]] has a 1-norm condition number of about
+    # 2e6 / 1e-9 = 2e15 (common practice, no source: cond = ‖A‖·‖A⁻¹‖)
+    r = solve("frequency 50 Hz\nI1: current 0 -> a 1 A\nRab: resistor a -> b 1 uohm\n"
+              "Ra: resistor a -> 0 1 Gohm\nRb: resistor b -> 0 1 Gohm")
+    assert r["condition_estimate"] == pytest.approx(2e15, rel=0.2)
+    assert any("ill-conditioned" in w["message"] for w in r["warnings"])
+    tame = solve("frequency 50 Hz\nI1: current 0 -> a 1 A\nRab: resistor a -> b 1 ohm\n"
+                 "Ra: resistor a -> 0 1 kohm\nRb: resistor b -> 0 1 kohm")
+    assert not any("ill-conditioned" in w["message"] for w in tame["warnings"])

@@ -305,9 +305,11 @@ def _factor_and_solve(matrix, b, circuit, node_names, branch_of):
     condition = _condition_estimate(matrix, lu)
     if not math.isfinite(condition) or condition > CONDITION_WARNING:
         digits = max(0, int(16 - math.log10(condition))) if math.isfinite(condition) else 0
+        trust = (f"only about {digits} significant digits of the results can be trusted"
+                 if digits else "the results may have no correct digits")
         warnings.append(Diagnostic(
             f"the equations are ill-conditioned (condition number about {condition:.1e}): "
-            f"only about {digits} significant digits of the results can be trusted",
+            f"{trust}",
             "very large and very small impedances side by side, or a circuit at or near "
             "resonance, cause this; check values and units", severity="warning"))
     return x, condition, warnings
