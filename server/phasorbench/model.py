@@ -121,8 +121,9 @@ class ElementTable:
     Python code here, so it happens once: ``names``, ``kinds``, ``values`` (complex
     array), ``node_names`` (ground first, in order of appearance) with ``node_index``,
     and per branch — one per two-terminal element, two per transformer (one per
-    winding) — ``owner`` (element position), ``p`` and ``n`` (node positions).
-    ``first`` maps each element to its first branch.
+    winding) — ``owner`` (element position), ``p`` and ``n`` (node positions). The
+    first ``len(elements)`` branches are the elements themselves, in order; transformers'
+    second windings follow.
     """
 
     def __init__(self, circuit: "Circuit", key):
@@ -149,7 +150,6 @@ class ElementTable:
             n = np.concatenate([n, [get(nodes[k][3]) for k in windings]])
             owner = np.concatenate([owner, windings])
         self.p, self.n, self.owner = p, n, owner
-        self.first = np.arange(count, dtype=np.int64)
 
 
 _COLUMNS = attrgetter("kind", "value", "nodes")
