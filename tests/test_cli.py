@@ -268,3 +268,17 @@ def test_module_with_a_non_utf8_file(tmp_path):
     assert done.returncode == 2
     assert done.stderr.startswith(f"{path}: error: not UTF-8 text")
     assert "Traceback" not in done.stderr
+
+
+def test_terminal_table_shows_rms_totals_for_several_frequencies():
+    # IEEE Std 1459-2010 (clause from memory): meter readings add the harmonics' powers
+    import subprocess
+    import sys
+    text = ("frequency 50 Hz\nV1: voltage a -> 0 230 V\nV5: voltage b -> a 11.5 V freq 250 Hz\n"
+            "R: resistor b -> 0 10 ohm\n")
+    done = subprocess.run([sys.executable, "-m", "phasorbench", "solve", "-"], input=text,
+                          capture_output=True, text=True, check=True)
+    assert "RMS totals over every frequency" in done.stdout
+    # formula: V rms of R = √(230² + 11.5²) = 230.3 V
+    row = next(line for line in done.stdout.splitlines()[::-1] if line.startswith("R "))
+    assert "230.3 V" in row

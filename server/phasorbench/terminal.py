@@ -76,4 +76,15 @@ def result_table(result: dict) -> str:
                 f"{g['pf']:.4f} {g['pf_sense']}",
                 "—" if vuf is None else f"{100 * vuf:.3f} %"])
         out += _table(heading, group_rows, {2, 3, 4, 5, 6})
+    totals = result.get("rms_totals")
+    if totals:
+        shown = ", ".join(eng(h["frequency_hz"], "Hz") for h in result.get("harmonics", []))
+        out += ["", f"RMS totals over every frequency (tables above: "
+                f"{eng(result['frequency_hz'], 'Hz')}; also solved: {shown})"]
+        heading = ["Element", "V rms", "I rms", "P", "V·I", "PF"]
+        floor = 1e-12 * max(t["s_va"] for t in totals.values())     # round-off shows as 0
+        rows = [[name, eng(t["v_rms"], "V"), eng(t["i_rms"], "A"),
+                 eng(t["p_w"], "W", floor=floor),
+                 eng(t["s_va"], "VA"), f"{t['pf']:.4f}"] for name, t in totals.items()]
+        out += _table(heading, rows, {1, 2, 3, 4, 5})
     return "\n".join(out) + "\n"
