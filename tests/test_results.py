@@ -146,3 +146,24 @@ def test_fortescue_identities():
     assert abs(zero) < 1e-14
     assert pos == pytest.approx(polar(5.7735, -30), rel=1e-5)
     assert neg == pytest.approx(polar(5.7735, 30), rel=1e-5)
+
+
+def test_lossless_resonance_is_flagged():
+    # formula: an ideal L and C in parallel at f0 = 1/(2π√(LC)) have zero admittance, so a
+    # current source into them has no finite answer; round-off leaves a huge one instead
+    r = solve("frequency 50\nI: current 0 -> a 1\nL: inductor a -> 0 1\n"
+              "C: capacitor a -> 0 (1/((2*pi*50)^2))")
+    assert any("lossless resonance" in w["message"] for w in r["warnings"])
+    # check-values C6: a damped parallel resonance (Q = 1600) is a plain, trusted result
+    ok = solve("frequency 3978.8735 Hz\namplitudes peak\nIs: current 0 -> a 10 mA\n"
+               "R: resistor a -> 0 8k\nL: inductor a -> 0 0.2 mH\nC: capacitor a -> 0 8 uF")
+    assert not ok["warnings"]
+
+
+def test_failed_power_balance_is_a_warning():
+    # Tellegen's theorem (common practice, no source): Σ S = 0; 1 µΩ in series with 10 GΩ
+    # loses the current's digits in V/R, and the result must say so
+    r = solve("frequency 50\nV: voltage a -> 0 230\nRbus: resistor a -> c 1u\n"
+              "Rleak: resistor c -> 0 10G")
+    assert not r["balance"]["ok"]
+    assert any("power balance does not close" in w["message"] for w in r["warnings"])

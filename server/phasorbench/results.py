@@ -14,7 +14,7 @@ import math
 import numpy as np
 
 from .errors import AnalysisError, Diagnostic
-from .model import CONTROLLED_KINDS, SOURCE_KINDS
+from .model import CONTROLLED_KINDS, PASSIVE_KINDS, SOURCE_KINDS
 from .solver import Solution
 
 #: |Q| at or below this fraction of |S| counts as "unity" power factor.
@@ -136,7 +136,8 @@ def _contract(solution: Solution) -> dict:
         "references": list(circuit.references),
         "condition_estimate": (solution.condition if solution.condition is not None and
                                math.isfinite(solution.condition) else None),
-        "warnings": [d.as_dict() for d in solution.warnings],
+        "warnings": [d.as_dict() for d in solution.warnings] +
+                    _plausibility(solution, relative, z),
     }
     if circuit.couplings:
         result["couplings"] = {
@@ -169,6 +170,44 @@ def _impedances(elements, v: np.ndarray, i: np.ndarray, circuit) -> np.ndarray:
     adm = free & (kinds == "admittance")
     z[adm] = np.where(values[adm] != 0, 1 / np.where(values[adm] != 0, values[adm], 1), np.nan)
     return z
+
+
+#: Results this many times larger than anything the sources could drive through the
+#: circuit's own impedances come from a lossless resonance or a near-singular structure.
+IMPLAUSIBLE_GAIN = 1e9
+
+
+def _plausibility(solution: Solution, relative: float, z: np.ndarray) -> list[dict]:
+    """Warnings for results that solved but should not be trusted as they stand."""
+    found = []
+    if relative > BALANCE_TOLERANCE:
+        found.append(Diagnostic(
+            f"the power balance does not close: the sum of S over all elements is "
+            f"{relative:.1e} of the total |S|, so some currents or powers have lost digits",
+            "very small impedances next to very large ones lose digits to cancellation: "
+            "write a short as a 0 ohm element, and keep leakage paths out unless they "
+            "matter", severity="warning").as_dict())
+    kinds = solution.circuit.table().kinds
+    values = np.abs(solution.circuit.table().values)
+    is_v = np.array([k == "voltage" for k in kinds], dtype=bool)
+    is_i = np.array([k == "current" for k in kinds], dtype=bool)
+    passive = np.array([k in PASSIVE_KINDS for k in kinds], dtype=bool)
+    own = z[passive]
+    finite_z = np.abs(own[np.isfinite(own)])
+    z_scale = float(finite_z.max()) if finite_z.size else 1.0
+    drive = max([float(values[is_v].max())] if is_v.any() else [0.0]) + \
+        (float(values[is_i].max()) * z_scale if is_i.any() else 0.0)
+    largest = float(np.abs(solution.voltage).max()) if len(solution.voltage) else 0.0
+    if drive > 0 and largest > IMPLAUSIBLE_GAIN * drive:
+        k = int(np.argmax(np.abs(solution.voltage)))
+        found.append(Diagnostic(
+            f"results exceed what the sources drive by more than {IMPLAUSIBLE_GAIN:.0e} "
+            f"({solution.names[k]} has {largest:.3g} against sources of about {drive:.3g}): "
+            "an ideal, lossless resonance or a nearly singular circuit",
+            "at exact resonance an ideal L and C with nothing to limit the current have no "
+            "finite answer: add the losses (winding resistance, ESR) or move off resonance",
+            severity="warning").as_dict())
+    return found
 
 
 def sequence_components(phases) -> tuple[complex, complex, complex]:

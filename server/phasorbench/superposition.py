@@ -75,3 +75,20 @@ def _rms_totals(results: list[dict], amplitudes: str) -> dict:
         totals[name] = {"v_rms": v, "i_rms": i, "p_w": p_w, "s_va": s,
                         "pf": abs(p_w) / s if s > 0 else 1.0}
     return totals
+
+
+def analysis_frequency_only(circuit: Circuit) -> tuple[Circuit, Diagnostic | None]:
+    """The circuit as the tools see it: only the analysis frequency's sources.
+
+    A power-factor correction or a Thevenin equivalent is a one-frequency question; the
+    sources at other frequencies are set to zero, and the warning says so (None when the
+    circuit has one frequency).
+    """
+    frequencies = source_frequencies(circuit)
+    if len(frequencies) == 1:
+        return circuit, None
+    others = ", ".join(f"{f:g} Hz" for f in frequencies[1:])
+    return circuit_at(circuit, circuit.frequency), Diagnostic(
+        f"this result is at {circuit.frequency:g} Hz only: the sources at {others} are set "
+        "to zero for it", "each frequency is a separate question for this tool",
+        severity="warning")

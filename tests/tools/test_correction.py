@@ -514,3 +514,30 @@ def test_three_phase_bank_reproduces_the_target(case):
     r = correct_power_factor(c, "G", target, at=("a", "b", "c"), bank=bank)
     again = solve_text(text + "\n".join(r["circuit_lines"]) + "\n")
     assert again["groups"]["G"]["pf"] == pytest.approx(target, abs=1e-9)
+
+
+def test_unreachable_target_is_refused_after_the_re_solve():
+    # formula: a shunt C across the inductor of a series R-L only lowers the lagging PF
+    # the source sees (0.847 with no C), so 0.95 lagging is out of reach there
+    from phasorbench.errors import CircuitError
+    from phasorbench.tools import correct_power_factor
+    from phasorbench.workflow import read_circuit
+    circuit = read_circuit("frequency 50 Hz\nV1: voltage a -> 0 230 V\n"
+                           "R: resistor a -> d 10 ohm\nL: inductor d -> 0 20 mH\n")
+    with pytest.raises(CircuitError) as info:
+        correct_power_factor(circuit, "V1", 0.95, at="d")
+    assert "no shunt capacitance" in str(info.value)
+    leading = correct_power_factor(circuit, "V1", 0.95, at="d", leading=True)
+    assert leading["pf_after"] == pytest.approx(0.95, abs=1e-9)
+
+
+def test_other_frequencies_are_left_out_with_a_warning():
+    # formula: at 50 Hz only V1 drives the divider, so V_th = 10·½ = 5 V
+    from phasorbench.tools import port_equivalent
+    from phasorbench.workflow import read_circuit
+    circuit = read_circuit("frequency 50 Hz\nV1: voltage a -> 0 10 V\n"
+                           "V3: voltage b -> a 10 V freq 150 Hz\nR: resistor b -> c 1 ohm\n"
+                           "Rl: resistor c -> 0 1 ohm\n")
+    out = port_equivalent(circuit, "c", "0")
+    assert out["thevenin_v"]["mag"] == pytest.approx(5.0, rel=1e-12)
+    assert any("150 Hz are set to zero" in w["message"] for w in out["warnings"])

@@ -25,6 +25,7 @@ import math
 import numpy as np
 from scipy.optimize import brentq
 
+from ..superposition import analysis_frequency_only
 from ..model import SOURCE_KINDS, Circuit, Element
 from ..results import contract
 from ..solver import solve
@@ -126,6 +127,7 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
     >>> round(r["capacitance_f"] * 1e6, 3), round(r["pf_after"], 12)
     (310.438, 0.95)
     """
+    circuit, one_frequency = analysis_frequency_only(circuit)
     sources, line, group = _source(circuit, source)
     target = _target(target_pf)
     for value, what in ((rated_voltage, "rated voltage"), (rated_frequency, "rated frequency")):
@@ -177,12 +179,32 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
                   for name, leg in zip(names, place["legs"]))
     corrected = derived(circuit, add=added)
     before, after = contract(base), contract(solve(corrected))
-    return report(
+    result = report(
         circuit=circuit, source=source, sources=sources, group=group, place=place,
         target=target, leading=leading, method=used, capacitance=capacitance, names=names,
         before=before, after=after, legs_before=legs_before, model=model,
         formula=(formula_c, formula_q), susceptance=b, rated_voltage=rated_voltage,
         rated_frequency=rated_frequency)
+    # The re-solve is the proof: a root of the model that does not reproduce the target
+    # (a capacitor that only resonates with the load, say) is no answer.
+    wanted = "leading" if leading else "lagging"
+    missed = abs(result["pf_error"]) > _VERIFY_TOLERANCE or (
+        target < 1 and result["pf_sense_after"] not in (wanted, "unity"))
+    if missed:
+        raise input_error(
+            f"no shunt capacitance at {place['description']} brings {source} to {target:g} "
+            f"{wanted}: re-solving with the best candidate ({capacitance * 1e6:.6g} µF) gives "
+            f"{result['pf_after']:.4g} {result['pf_sense_after']}",
+            "a capacitor at this place cannot supply the reactive power the source sees "
+            "(it resonates with the load instead); try a place nearer the source, or the "
+            "leading target", line)
+    if one_frequency is not None:
+        result["warnings"].append(one_frequency.as_dict())
+    return result
+
+
+#: How close the re-solved power factor must come to the target to count as reached.
+_VERIFY_TOLERANCE = 1e-6
 
 
 # --- inputs --------------------------------------------------------------------------

@@ -11,6 +11,7 @@ and the best plain resistor, R = |Z_th|.
 
 from __future__ import annotations
 
+from ..superposition import analysis_frequency_only
 from ..model import Circuit
 from ..results import phasor_dict
 from ._network import canonical_node, conductive_parts, input_error, port_model, voltage_joined
@@ -55,6 +56,7 @@ def port_equivalent(circuit: Circuit, a: str, b: str) -> dict:
     >>> round(r["thevenin_v"]["re"], 12), round(r["thevenin_z"]["re"], 12)
     (5.0, 2.0)
     """
+    circuit, one_frequency = analysis_frequency_only(circuit)
     a = canonical_node(circuit, a, "port node")
     b = canonical_node(circuit, b, "port node")
     if a == b:
@@ -69,6 +71,8 @@ def port_equivalent(circuit: Circuit, a: str, b: str) -> dict:
         "warnings": [d.as_dict() for d in circuit.warnings],
     }
     notes = out["notes"]
+    if one_frequency is not None:
+        out["warnings"].append(one_frequency.as_dict())
 
     parts = conductive_parts(circuit)
     if parts[a] != parts[b]:
