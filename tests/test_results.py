@@ -167,3 +167,11 @@ def test_failed_power_balance_is_a_warning():
               "Rleak: resistor c -> 0 10G")
     assert not r["balance"]["ok"]
     assert any("power balance does not close" in w["message"] for w in r["warnings"])
+
+
+def test_voltage_unbalance_of_a_balanced_acb_system_is_zero():
+    # common practice, no source: a balanced set has no unbalance whichever way it turns
+    r = solve("frequency 50\nG: voltage3 a b c -> 0 400 V line sequence acb phase 10 deg\n"
+              "Y: load3 wye a b c -> 0 10 ohm")
+    assert r["groups"]["G"]["voltage_unbalance"] < 1e-12
+    assert r["groups"]["Y"]["voltage_unbalance"] < 1e-12

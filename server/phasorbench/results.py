@@ -240,7 +240,10 @@ def _group(group, result: dict, solution: Solution) -> dict:
         "sequence_current": dict(zip(("zero", "positive", "negative"),
                                      phasor_dicts(np.array(seq_i)))),
         "line_voltage": dict(zip(("ab", "bc", "ca"), phasor_dicts(line_voltages))),
-        "voltage_unbalance": abs(v2) / abs(v1) if abs(v1) > 0 else None,
+        # |V2|/|V1| of the line-to-line set; for a system turning in acb order the
+        # negative sequence is the one that turns, so the smaller over the larger.
+        "voltage_unbalance": (min(abs(v1), abs(v2)) / max(abs(v1), abs(v2))
+                              if max(abs(v1), abs(v2)) > 0 else None),
         "line": group.line,
     }
     if group.connection == "wye":
