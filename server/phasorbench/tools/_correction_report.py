@@ -19,6 +19,11 @@ from ..results import phasor_dict
 from . import capacitors as cap
 
 
+#: Above this harmonic order a "resonance" is the round-off of an ideal source's zero
+#: impedance, not a network property (and far beyond any harmonic a load produces).
+_MAX_ORDER = 1000.0
+
+
 def report(*, circuit, source, sources, group, place, target, leading, method, capacitance,
            names, before, after, legs_before, model, formula, susceptance, rated_voltage,
            rated_frequency) -> dict:
@@ -66,6 +71,8 @@ def report(*, circuit, source, sources, group, place, target, leading, method, c
     orders = []
     for order in sorted(1.0 / math.sqrt(susceptance * x.real) for x in mu
                         if x.real > 0 and abs(x.imag) <= 1e-9 * abs(x)):
+        if order > _MAX_ORDER:
+            continue   # round-off of an ideal source behind the bank: no network reactance
         if not orders or order > orders[-1] * (1 + 1e-9):   # a balanced bank repeats a mode
             orders.append(order)
     h = orders[0] if orders else None
