@@ -349,3 +349,19 @@ def test_sign_glued_after_j(spelling, expected):
     from phasorbench.language.parser import parse_circuit
     circuit = parse_circuit(f"frequency 50\nZ: impedance a -> 0 {spelling}")
     assert circuit.elements["Z"].value == pytest.approx(expected)
+
+
+@pytest.mark.parametrize("spelling, farads", [("(2*Cpf) F", 300e-6), ("Cpf F", 150e-6)])
+def test_unit_repeated_after_a_named_value_is_a_check(spelling, farads):
+    # circuit-language.md: a named value may carry a unit, checked where it is used
+    from phasorbench.language.parser import parse_circuit
+    c = parse_circuit(f"frequency 50\nCpf = 150 uF\nC: capacitor a -> 0 {spelling}")
+    assert c.elements["C"].value == pytest.approx(farads)
+
+
+def test_prefixed_unit_after_a_named_value_is_refused():
+    from phasorbench.errors import CircuitError
+    from phasorbench.language.parser import parse_circuit
+    with pytest.raises(CircuitError) as info:
+        parse_circuit("frequency 50\nCpf = 150 uF\nC: capacitor a -> 0 Cpf uF")
+    assert "already carries farads" in str(info.value)

@@ -76,14 +76,23 @@ def _rectangular(stream: TokenStream) -> Quantity:
     if stream.at("+", "-"):
         sign = -1 if stream.take().text == "-" else 1
     while True:
+        starts = stream.peek()
+        literal = starts is not None and starts.kind == "number"
         value, unit = _term(stream)
         apart = False
         word = _unit_word(stream)
         if word is not None:
             scale, word_unit, token = word
-            if unit is not None:
-                raise LanguageError(f"two units on one number ('{token.text}')",
-                                    "give the unit once", token.start, token.end)
+            if unit is not None and (literal or not (word_unit == unit and scale == 1.0)):
+                if literal or unit == UNKNOWN_UNIT or word_unit != unit:
+                    raise LanguageError(f"two units on one number ('{token.text}')",
+                                        "give the unit once", token.start, token.end)
+                raise LanguageError(
+                    f"'{token.text}' would scale a value that already carries "
+                    f"{UNIT_NAMES[unit]}", f"write the unit without a prefix, or leave "
+                    "it out", token.start, token.end)
+            if unit is not None:        # 'Cpf F': the unit written again, as a check
+                word_unit = unit
             value, unit, apart = value * scale, word_unit, True
             last_scale = scale
         terms.append((sign * value, unit, apart))
