@@ -282,3 +282,15 @@ def test_terminal_table_shows_rms_totals_for_several_frequencies():
     # formula: V rms of R = √(230² + 11.5²) = 230.3 V
     row = next(line for line in done.stdout.splitlines()[::-1] if line.startswith("R "))
     assert "230.3 V" in row
+
+
+def test_a_huge_line_is_shown_as_a_window_around_the_caret():
+    # circuit-language.md: the source line and a caret under the span; a 200 kB line
+    # must not be echoed whole
+    from phasorbench.errors import Diagnostic, format_diagnostic
+    line = "R1: resistor a -> b " + "1" * 200_000 + "q"
+    d = Diagnostic("bad number", "fix it", line=1, column=len(line), length=1)
+    text = format_diagnostic(d, "f.circuit", line)
+    shown, caret = text.splitlines()[1:3]
+    assert len(shown) < 400
+    assert shown[caret.index("^")] == "q"

@@ -14,7 +14,7 @@ import sys
 import traceback
 
 from . import __version__
-from .errors import CircuitError, Diagnostic, format_diagnostic
+from .errors import CircuitError, Diagnostic, format_diagnostic, source_lines
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
 
@@ -55,8 +55,9 @@ def load_source(args) -> tuple[str, str]:
 
 
 def print_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> None:
+    lines = source_lines(text) if text is not None else None     # split once, not per error
     for d in diagnostics:
-        print(format_diagnostic(d, name, text), file=sys.stderr)
+        print(format_diagnostic(d, name, lines=lines), file=sys.stderr)
 
 
 def dump_json(data) -> str:

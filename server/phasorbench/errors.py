@@ -86,7 +86,12 @@ class AnalysisError(CircuitError):
     """The equations could not be solved numerically (singular matrix, NaN)."""
 
 
-def format_diagnostic(diagnostic: Diagnostic, filename: str, text: str | None = None) -> str:
+#: A source line longer than this is shown as a window around the caret.
+SHOWN_LINE = 160
+
+
+def format_diagnostic(diagnostic: Diagnostic, filename: str, text: str | None = None,
+                      *, lines: list[str] | None = None) -> str:
     """``FILE:LINE:COL: error: message``, the source line, a caret span and the hint.
 
     >>> d = Diagnostic("bad", "fix it", line=1, column=3, length=2)
@@ -103,16 +108,24 @@ def format_diagnostic(diagnostic: Diagnostic, filename: str, text: str | None = 
         head = (f"{filename}:{diagnostic.line}:{diagnostic.column or 1}: "
                 f"{diagnostic.severity}: {message}")
     out = [head]
-    if diagnostic.line is not None and text is not None:
-        lines = source_lines(text)
+    if lines is None and text is not None and diagnostic.line is not None:
+        lines = source_lines(text)       # callers with many diagnostics pass ``lines``
+    if diagnostic.line is not None and lines is not None:
         if 0 < diagnostic.line <= len(lines):
+            raw = lines[diagnostic.line - 1]
+            column = diagnostic.column or 1
+            width = max(1, diagnostic.length)
+            start = 0
+            if len(raw) > SHOWN_LINE:    # a window around the caret, not megabytes
+                start = max(0, column - 1 - SHOWN_LINE // 2)
+                raw = raw[start:start + SHOWN_LINE]
+                width = min(width, SHOWN_LINE)
             # One printable character per column, so the caret stays under its span
             # (a tab is one column) and no control character reaches the terminal.
             source = "".join(c if c.isprintable() else " " if c.isspace() else "\ufffd"
-                             for c in lines[diagnostic.line - 1])
+                             for c in raw)
             out.append("  " + source)
-            column = diagnostic.column or 1
-            out.append("  " + " " * (column - 1) + "^" * max(1, diagnostic.length))
+            out.append("  " + " " * (column - 1 - start) + "^" * width)
     if diagnostic.hint:
         out.append(f"  hint: {_escaped(diagnostic.hint)}")
     return "\n".join(out)
