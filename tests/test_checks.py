@@ -268,3 +268,16 @@ def test_every_structure_error_names_its_elements_and_has_a_hint():
         for error in structure_errors(body):
             assert all(name in error.message for name in names)
             assert error.hint
+
+
+def test_coupled_coils_must_have_a_positive_semidefinite_inductance_matrix():
+    # formula: stored energy ½·iᵀ·L·i ≥ 0 for passive coils; three 1 H coils with k = -0.9
+    # on every pair give L = [[1, -.9, -.9], [-.9, 1, -.9], [-.9, -.9, 1]], eigenvalue -0.8
+    from phasorbench.workflow import check_text
+    base = ("frequency 50\nV: voltage a -> 0 1\nL1: inductor a -> 0 1\nL2: inductor b -> 0 1\n"
+            "L3: inductor c -> 0 1\nR2: resistor b -> 0 1\nR3: resistor c -> 0 1\n"
+            "K12: coupling L1 L2 k {k}\nK13: coupling L1 L3 k {k}\nK23: coupling L2 L3 k {k}\n")
+    bad = [d for d in check_text(base.format(k=-0.9)) if d.severity == "error"]
+    assert len(bad) == 1 and "negative eigenvalue" in bad[0].message
+    assert "-0.8" in bad[0].message
+    assert not [d for d in check_text(base.format(k=0.9)) if d.severity == "error"]

@@ -72,7 +72,31 @@ def check_references(circuit: Circuit) -> list[Diagnostic]:
                 "give one coupling per pair of inductors", coupling.line, 1,
                 len(coupling.name)))
         pairs.setdefault(pair, coupling)
+    if len(circuit.couplings) > 1 and not any(d.severity == "error" for d in found):
+        found.extend(_check_inductance_matrix(circuit))
     return found
+
+
+def _check_inductance_matrix(circuit: Circuit) -> list[Diagnostic]:
+    """Three or more coupled coils: each |k| ≤ 1 is not enough, the inductance matrix must
+    also have no negative eigenvalue (a passive set of coils stores energy ½·iᵀLi ≥ 0)."""
+    names = sorted({n for c in circuit.couplings.values() for n in c.inductors})
+    position = {n: k for k, n in enumerate(names)}
+    matrix = np.diag([circuit.elements[n].value.real for n in names])
+    for c in circuit.couplings.values():
+        a, b = (position[n] for n in c.inductors)
+        matrix[a, b] = matrix[b, a] = c.m
+    lowest = float(np.linalg.eigvalsh(matrix).min())
+    if lowest >= -1e-12 * float(np.abs(matrix).max()):
+        return []
+    first = min(circuit.couplings.values(), key=lambda c: c.line or 0)
+    return [Diagnostic(
+        f"couplings {', '.join(circuit.couplings)} together are not physical: the "
+        f"inductance matrix of {', '.join(names)} has a negative eigenvalue "
+        f"({lowest:.3g} H), so the coils could give out energy they never stored",
+        "with three or more coils each |k| ≤ 1 is not enough: the k must fit together "
+        "(three coils cannot all oppose each other strongly); lower the |k| values",
+        first.line, 1, len(first.name))]
 
 
 def _check_coupling(circuit: Circuit, coupling) -> list[Diagnostic]:
