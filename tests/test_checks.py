@@ -281,3 +281,15 @@ def test_coupled_coils_must_have_a_positive_semidefinite_inductance_matrix():
     assert len(bad) == 1 and "negative eigenvalue" in bad[0].message
     assert "-0.8" in bad[0].message
     assert not [d for d in check_text(base.format(k=0.9)) if d.severity == "error"]
+
+
+def test_element_on_one_node_is_a_warning_and_block_lines_must_differ():
+    # circuit-language.md: a likely misspelling is a warning; a block's three lines are
+    # three different nodes (a three-phase block joins three lines)
+    from phasorbench.workflow import check_text
+    found = check_text("frequency 50\nV: voltage a -> 0 1\nR: resistor a -> a 5\n"
+                       "R2: resistor a -> 0 5")
+    assert [(d.severity, d.line) for d in found] == [("warning", 3)]
+    [error] = check_text("frequency 50\nG: voltage3 a b c -> 0 1\n"
+                         "Y: load3 wye a a c -> 0 5 ohm")
+    assert error.severity == "error" and error.line == 3 and "must differ" in error.message

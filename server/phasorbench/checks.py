@@ -277,7 +277,21 @@ def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]
             "the connections", line or None, 1 if line else None, 1))
 
     found.extend(_dangling(table, stuck_nodes))
+    found.extend(_self_loops(circuit))
     return found, tuple(references)
+
+
+def _self_loops(circuit: Circuit) -> list[Diagnostic]:
+    """Two-terminal elements whose both terminals are one node (voltage-type ones are
+    already source loops): they carry nothing, and usually hide a misspelt node."""
+    found = []
+    for e in circuit.elements.values():
+        if len(e.nodes) == 2 and e.nodes[0] == e.nodes[1] and e.kind not in VOLTAGE_KINDS:
+            found.append(Diagnostic(
+                f"{e.name} has both terminals on node '{e.nodes[0]}': it has no effect on "
+                "the circuit; a misspelt node?", "check the terminals", e.line, 1,
+                len(e.name), "warning"))
+    return found
 
 
 def _island_references(circuit, table: _Terminals, island: np.ndarray, found) -> list[str]:

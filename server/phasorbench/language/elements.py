@@ -352,7 +352,12 @@ class ElementReader:
                 raise stream.fail_here("a load3 block is 'wye' or 'delta'",
                                        "e.g. M1: load3 wye a b c -> n 8 + j6 ohm")
             connection = stream.take().text.lower()
+        first_line = stream.peek()
         lines = tuple(self.node(stream, f"line {p}") for p in "abc")
+        if len(set(lines)) < 3:
+            raise LanguageError(f"the three line nodes of a {kind} block must differ "
+                                f"({' '.join(lines)})", "write three different lines, e.g. "
+                                "a b c", first_line.start, stream.tokens[stream.pos - 1].end)
         neutral = None
         if stream.peek() is not None and stream.peek().kind == "arrow":
             if connection == "delta":
