@@ -94,3 +94,12 @@ def test_waveform_adds_every_frequency():
     i = np.array(samples["i"])
     assert np.sqrt(np.trapezoid(i * i, t) / t[-1]) == pytest.approx(
         r["rms_totals"]["R"]["i_rms"], rel=1e-6)
+
+
+def test_an_analysis_frequency_no_source_runs_at_is_warned():
+    # circuit-language.md: 'frequency' is the analysis frequency; with every source at its
+    # own freq elsewhere, nothing is driven there and the result must say so
+    r = solve("frequency 60 Hz\nV1: voltage a -> 0 1 V freq 50 Hz\nR: resistor a -> 0 1")
+    assert r["elements"]["R"]["current"]["mag"] == 0
+    assert any("no source runs at the analysis frequency 60 Hz" in w["message"]
+               for w in r["warnings"])

@@ -54,6 +54,14 @@ def solve_superposed(circuit: Circuit) -> dict:
     main = results[0]
     main["harmonics"] = results[1:]
     main["rms_totals"] = _rms_totals(results, circuit.amplitudes)
+    driven = any(e.kind in ("voltage", "current") and (
+        e.frequency is None or math.isclose(e.frequency, frequencies[0], rel_tol=SAME_FREQUENCY))
+        for e in circuit.elements.values())
+    if not driven:
+        main["warnings"].append(Diagnostic(
+            f"no source runs at the analysis frequency {frequencies[0]:g} Hz: the tables "
+            "show zero there", "remove the 'frequency' line to show the lowest source "
+            "frequency, or set it to the frequency you mean", severity="warning").as_dict())
     shown = ", ".join(f"{f:g} Hz" for f in frequencies)
     main["warnings"].append(Diagnostic(
         f"sources run at {len(frequencies)} frequencies ({shown}): the tables show "
