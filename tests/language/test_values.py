@@ -365,3 +365,18 @@ def test_prefixed_unit_after_a_named_value_is_refused():
     with pytest.raises(CircuitError) as info:
         parse_circuit("frequency 50\nCpf = 150 uF\nC: capacitor a -> 0 Cpf uF")
     assert "already carries farads" in str(info.value)
+
+
+@pytest.mark.parametrize("value, hint", [
+    ("10 uf", "did you mean 'uF'?"),
+    ("2.2mh", "did you mean 'mH'?"),
+    ("3 −j4", "'−' only looks like '-'"),
+    ("10∠30º", "'º' only looks like '°'"),
+])
+def test_look_alikes_and_wrong_case_get_a_pointed_hint(value, hint):
+    # circuit-language.md: messages quote the input and say what to do; prefixes and
+    # units are case-sensitive
+    from phasorbench.workflow import check_text
+    [error] = [d for d in check_text(f"frequency 50 Hz\nV: voltage a -> 0 1\n"
+                                     f"Z: impedance a -> 0 {value}") if d.severity == "error"]
+    assert hint in error.hint

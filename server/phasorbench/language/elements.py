@@ -14,7 +14,7 @@ import math
 import re
 
 from ..model import (CONTROLLED_KINDS, GROUND, Coupling, Element, Group)
-from .expressions import LanguageError, TokenStream, decode_suffix
+from .expressions import LanguageError, TokenStream, decode_suffix, spelling_hint
 from .values import expect_unit, parse_angle_radians, parse_value
 
 #: Canonical unit each kind's value takes (None: a plain number).
@@ -87,7 +87,8 @@ class ElementReader:
         token = stream.peek()
         if token is None or token.kind != "arrow":
             raise stream.fail_here("expected '->' between the terminals",
-                                   "write the reference direction, e.g. a -> b")
+                                   (spelling_hint(token.text) if token is not None else None)
+                                   or "write the reference direction, e.g. a -> b")
         stream.take()
 
     def two_nodes(self, stream: TokenStream) -> tuple[str, str]:
@@ -223,6 +224,7 @@ class ElementReader:
                         "options: " + ", ".join(o for o, k in OPTION_KINDS.items() if kind in k)
                         if any(kind in k for k in OPTION_KINDS.values()) else
                         f"a {kind} takes no options")
+                hint = spelling_hint(token.text) or hint
                 raise LanguageError(f"unexpected '{token.text}'", hint, token.start, token.end)
             if kind not in OPTION_KINDS[word]:
                 raise LanguageError(f"'{word}' does not apply to a {kind}",

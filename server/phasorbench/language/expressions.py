@@ -78,10 +78,32 @@ def decode_suffix(word: str) -> tuple[float, str | None, bool] | None:
     return None
 
 
+#: Characters that look like the language's own but are not (pasted from documents).
+LOOKALIKES = {"−": "-", "–": "-", "—": "-", "‐": "-", "º": "°", "˚": "°", "×": "*",
+              "·": "*", "＋": "+"}
+
+
+def spelling_hint(word: str) -> str | None:
+    """'did you mean …' for a look-alike character or a unit written in the wrong case."""
+    for char, meant in LOOKALIKES.items():
+        if char in word:
+            return f"'{char}' only looks like '{meant}': type the plain '{meant}'"
+    lowered = {k.lower(): k for k in UNITS}
+    for p in PREFIXES:                 # m before M: 'mh' most likely means mH
+        for u in UNITS:
+            if UNITS[u] not in ("deg", "rad"):
+                lowered.setdefault((p + u).lower(), p + u)
+    meant = lowered.get(word.lower())
+    if meant is not None and meant != word:
+        return f"did you mean '{meant}'? (units and prefixes are case-sensitive)"
+    return None
+
+
 def suffix_error(token: Token, number_text: str = "") -> LanguageError:
     text = number_text + token.text
     return LanguageError(
         f"'{text}' is not a number with a known prefix or unit",
+        spelling_hint(token.text) or
         "prefixes: f p n u µ m k M G T (case matters: m milli, M mega); "
         "units: ohm Ω F H S V A Hz deg rad — e.g. 4.7k, 150 uF, 2.2 mH",
         token.start - len(number_text), token.end)

@@ -13,7 +13,7 @@ import cmath
 import math
 
 from .expressions import (UNIT_NAMES, UNKNOWN_UNIT, LanguageError, Quantity, TokenStream,
-                          decode_suffix, imaginary_word)
+                          decode_suffix, imaginary_word, spelling_hint)
 
 #: Words that end a value: the options that may follow it.
 OPTION_WORDS = frozenset({"phase", "rms", "peak", "freq", "sense", "tol", "line",
@@ -133,6 +133,7 @@ def _term(stream: TokenStream) -> tuple[complex, str | None]:
         q = stream.parenthesised()
     else:
         raise stream.fail_here(f"'{token.text}' is not a value",
+                               spelling_hint(token.text) or
                                "write a number, e.g. 4.7k, 150 uF, 8.2 + j5.1, 10∠30°")
     return q.value, q.unit
 
@@ -155,6 +156,7 @@ def _unit_word(stream: TokenStream):
     decoded = decode_suffix(token.text)
     if decoded is None or decoded[2]:
         raise LanguageError(f"unexpected '{token.text}' after the value",
+                            spelling_hint(token.text) or
                             "a value may be followed by a unit (ohm, F, H, S, V, A, Hz) and "
                             "then options (phase, rms, peak, freq, sense, tol)",
                             token.start, token.end)
