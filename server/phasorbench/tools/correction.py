@@ -134,7 +134,7 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
         if value is not None and not (isinstance(value, (int, float)) and
                                       math.isfinite(value) and value > 0):
             raise input_error(f"the {what} must be a positive number, not {value!r}",
-                              "e.g. --rated-voltage 480")
+                              "e.g. a rated voltage of 480 V")
     place = _place(circuit, source, group, at, bank, neutral)
     if method not in ("auto", "closed-form", "bracketed"):
         raise ValueError(f"method must be auto, closed-form or bracketed, not {method!r}")
@@ -243,12 +243,12 @@ def _target(target_pf) -> float:
         target = float(target_pf)
     except (TypeError, ValueError):
         raise input_error(f"the target power factor '{target_pf}' is not a number",
-                          "e.g. --target 0.95") from None
+                          "e.g. a target of 0.95") from None
     if not (math.isfinite(target) and 0.0 < target <= 1.0):
         raise input_error(f"the target power factor must be above 0 and at most 1, not "
                           f"{target:g}" if math.isfinite(target) else
                           "the target power factor must be a finite number",
-                          "a power factor is |P|/|S|, e.g. --target 0.95")
+                          "a power factor is |P|/|S|, e.g. 0.95")
     return target
 
 
@@ -268,7 +268,7 @@ def _place(circuit: Circuit, source: str, group, at, bank, neutral) -> dict:
         nodes = tuple(at)
     if len(nodes) not in (2, 3):
         raise input_error(f"a correction place is one node, two nodes or three line nodes, "
-                          f"not {len(nodes)}", "e.g. --at bus, --across a b, --at a,b,c")
+                          f"not {len(nodes)}", "a node (bus), two nodes across (a b) or three lines (a,b,c)")
     nodes = tuple(canonical_node(circuit, n, "correction node") for n in nodes)
     if len(set(nodes)) != len(nodes):
         raise input_error(f"the correction place repeats a node ({', '.join(nodes)})",
@@ -281,19 +281,19 @@ def _place(circuit: Circuit, source: str, group, at, bank, neutral) -> dict:
     if len(nodes) == 2:
         if bank is not None or neutral is not None:
             raise input_error("a bank connection (wye/delta, a star node) applies to a "
-                              "three-phase place", "give three line nodes, e.g. --at a,b,c")
+                              "three-phase place", "give three line nodes, e.g. a,b,c")
         a, b = nodes
         return {"connection": "single", "nodes": list(nodes), "star": None,
                 "floating": False, "legs": [(a, b)], "ports": [(a, b)],
                 "m": np.eye(1), "description": f"{a} → {b}"}
     bank = bank or "wye"
     if bank not in ("wye", "delta"):
-        raise input_error(f"a bank is wye or delta, not '{bank}'", "e.g. --bank delta")
+        raise input_error(f"a bank is wye or delta, not '{bank}'", "e.g. a delta bank")
     a, b, c = nodes
     text = ", ".join(nodes)
     if bank == "delta":
         if neutral is not None:
-            raise input_error("a delta bank has no star point", "drop --neutral or use wye")
+            raise input_error("a delta bank has no star point", "give no star point, or use wye")
         return {"connection": "delta", "nodes": list(nodes), "star": None, "floating": False,
                 "legs": [(a, b), (b, c), (c, a)], "ports": [(a, c), (b, c)], "m": _DELTA,
                 "description": f"lines {text} (delta bank)"}
@@ -302,7 +302,7 @@ def _place(circuit: Circuit, source: str, group, at, bank, neutral) -> dict:
         star = canonical_node(circuit, neutral, "star node")
         if star in nodes or parts[star] != parts[a]:
             raise input_error(f"the bank's star node '{star}' must be another node of the "
-                              "same part as its lines", "e.g. --neutral n")
+                              "same part as its lines", "e.g. the star point n")
         return {"connection": "wye", "nodes": list(nodes), "star": star, "floating": False,
                 "legs": [(a, star), (b, star), (c, star)],
                 "ports": [(a, star), (b, star), (c, star)], "m": np.eye(3),
@@ -346,7 +346,7 @@ def _reachable(source: str, line, s_load: complex, theta: float, target: float,
     if phi <= theta:
         if q < 0 and not leading:
             raise input_error(f"source {source} already runs at {now}: a shunt capacitor only "
-                              "makes it lead more", "aim at a leading target (--leading) or "
+                              "makes it lead more", "aim at a leading target or "
                               "remove capacitance instead", line)
         if q < 0:
             raise input_error(f"source {source} already runs at {now}, more leading than the "
