@@ -355,3 +355,12 @@ def test_forty_concurrent_solves_all_succeed(bench_samples):
     assert [r.status_code for r in answers] == [200] * 40
     for k, r in enumerate(answers):
         assert math.isclose(r.json()["elements"]["R1"]["current"]["mag"], 10 / (k + 1), rel_tol=1e-9)
+
+
+def test_a_body_that_is_not_json_gets_the_error_shape(api):
+    # results-contract.md: errors are {"errors": [{"line", "column", "message", "hint"}]}
+    deep = "[" * 100_000 + "]" * 100_000
+    r = api.post("/api/solve", content=deep, headers={"Content-Type": "application/json"})
+    assert 400 <= r.status_code < 500
+    body = r.json()
+    assert set(body) == {"errors", "warnings"} and body["errors"][0]["message"]

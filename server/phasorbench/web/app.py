@@ -21,6 +21,7 @@ from starlette.staticfiles import StaticFiles
 from .. import __version__
 from . import api, pages, sheet_routes
 from .guards import HostOriginGuard
+from starlette.exceptions import HTTPException as StarletteHTTPException
 from .jsonsafe import StrictJSONResponse
 from .settings import Settings
 
@@ -66,6 +67,14 @@ async def _invalid_request(request: Request, exc: RequestValidationError):
     return StrictJSONResponse({"errors": errors, "warnings": []}, status_code=422)
 
 
+async def _http_error(request: Request, exc: StarletteHTTPException):
+    """Framework refusals (a body that is not JSON, an unknown path) in the API's error
+    shape, so a client reads every failure the same way."""
+    detail = exc.detail if isinstance(exc.detail, str) else "the request was refused"
+    return StrictJSONResponse({"errors": [api.error_item(detail)], "warnings": []},
+                              status_code=exc.status_code, headers=exc.headers)
+
+
 async def _internal_error(request: Request, exc: Exception):
     log.error("unhandled error on %s %s", request.method, request.url.path, exc_info=exc)
     return api.error_response(500, api.INTERNAL_ERROR)
@@ -96,6 +105,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         docs_url=None, redoc_url=None,          # /docs is our own page: no CDN assets
         default_response_class=StrictJSONResponse,
         exception_handlers={RequestValidationError: _invalid_request,
+                            StarletteHTTPException: _http_error,
                             Exception: _internal_error},
     )
     app.state.settings = settings
