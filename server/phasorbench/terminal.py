@@ -6,7 +6,8 @@ exactly the strings of the page and the sheet.
 
 from __future__ import annotations
 
-from .formatting import ELEMENT_COLUMNS, NODE_COLUMNS, ROUND_OFF, eng, element_rows, node_rows
+from .formatting import (ELEMENT_COLUMNS, NODE_COLUMNS, ROUND_OFF, eng, element_rows, node_rows,
+                         power_factor)
 
 
 def _table(headings: list[str], rows: list[list[str]], right: set[int]) -> list[str]:
@@ -73,7 +74,7 @@ def result_table(result: dict) -> str:
             group_rows.append([
                 name, f"{g['kind']} {g['connection']}", eng(g["p_w"], "W", floor=floor),
                 eng(g["q_var"], "var", floor=floor), eng(g["s_va"], "VA", floor=floor),
-                f"{g['pf']:.4f} {g['pf_sense']}",
+                power_factor(g["pf"], g["pf_sense"]),
                 "—" if vuf is None else f"{100 * vuf:.3f} %"])
         out += _table(heading, group_rows, {2, 3, 4, 5, 6})
     totals = result.get("rms_totals")

@@ -22,6 +22,12 @@ _FILE_HELP = "a .circuit file, or - for standard input"
 _VOLTS = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?[0-9]+)?)\s*(k?)\s*V?\s*$")
 
 
+def _complex_power(supply: dict) -> str:
+    """'8.756 kW + 3.866 kvar', with the sign of Q written once ('− 1.569 kvar')."""
+    q = supply["q_var"]
+    return f"{eng(supply['p_w'], 'W')} {'−' if q < 0 else '+'} {eng(abs(q), 'var')}"
+
+
 def add_tool_commands(commands) -> None:
     """Register ``correct`` and ``port`` on the command line's sub-command set."""
     correct = commands.add_parser(
@@ -151,8 +157,7 @@ def correction_text(r: dict) -> str:
         ("power factor", f"{power_factor(r['pf_before'], r['pf_sense_before'])} → "
                          f"{power_factor(r['pf_after'], r['pf_sense_after'], 9)} "
                          f"(target {power_factor(r['target_pf'], r['target_sense'])})"),
-        ("supply", f"{eng(before['p_w'], 'W')} + {eng(before['q_var'], 'var')} → "
-                   f"{eng(after['p_w'], 'W')} + {eng(after['q_var'], 'var')}"),
+        ("supply", f"{_complex_power(before)} → {_complex_power(after)}"),
         ("supply current", f"{_supply_current(before)} → {_supply_current(after)}"),
         ("ideal-bus formula", f"{eng(r['formula_capacitance_f'], 'F', 6)}{each} from "
                               f"Qc = P(tanφ1 − tanφ2) = {eng(r['formula_q_var'], 'var')} "

@@ -227,7 +227,8 @@ class ElementReader:
                 hint = spelling_hint(token.text) or hint
                 raise LanguageError(f"unexpected '{token.text}'", hint, token.start, token.end)
             if kind not in OPTION_KINDS[word]:
-                raise LanguageError(f"'{word}' does not apply to a {kind}",
+                article = "an" if kind[0] in "aeiou" else "a"
+                raise LanguageError(f"'{word}' does not apply to {article} {kind}",
                                     f"'{word}' applies to: " + ", ".join(OPTION_KINDS[word]),
                                     token.start, token.end)
             key = "amplitude" if word in ("rms", "peak") else word
