@@ -293,3 +293,11 @@ def test_element_on_one_node_is_a_warning_and_block_lines_must_differ():
     [error] = check_text("frequency 50\nG: voltage3 a b c -> 0 1\n"
                          "Y: load3 wye a a c -> 0 5 ohm")
     assert error.severity == "error" and error.line == 3 and "must differ" in error.message
+
+
+def test_sensing_a_block_points_at_its_phases():
+    # circuit-language.md: a block stands for BLOCK.a, BLOCK.b, BLOCK.c; sense takes an element
+    from phasorbench.workflow import check_text
+    [error] = check_text("frequency 50\nG: voltage3 a b c -> 0 1\nM: load3 wye a b c -> 0 5\n"
+                         "F: cccs x -> 0 2 sense M\nRx: resistor x -> 0 1")
+    assert "three-phase block" in error.message and "M.a" in error.hint

@@ -43,10 +43,17 @@ def check_references(circuit: Circuit) -> list[Diagnostic]:
         if element.sense_element is not None:
             target = elements.get(element.sense_element)
             if target is None:
+                sensed = element.sense_element
+                if sensed in circuit.groups:
+                    what, hint = ("a three-phase block", "sense one of its phase elements, "
+                                  f"e.g. {circuit.groups[sensed].elements[0]}")
+                elif sensed in circuit.couplings:
+                    what, hint = "a coupling", "sense one of the coupled inductors"
+                else:
+                    what, hint = "not an element", _close_hint(sensed, elements)
                 found.append(Diagnostic(
-                    f"{element.name} senses '{element.sense_element}', which is not an element",
-                    _close_hint(element.sense_element, elements), element.line, 1,
-                    len(element.name)))
+                    f"{element.name} senses '{sensed}', which is {what}", hint, element.line,
+                    1, len(element.name)))
             elif target.kind == "transformer":
                 found.append(Diagnostic(
                     f"{element.name} senses transformer {target.name}: only two-terminal "
