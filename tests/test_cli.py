@@ -178,7 +178,8 @@ def test_error_of_no_line(capsys, circuit_file):
 
 
 @pytest.mark.parametrize("data, message", [
-    (b"frequency 50 \xff\xfe\n", "error: not UTF-8 text (byte 14 cannot be read)"),
+    (b"frequency 50 \xff\xfe\n",
+     "error: not UTF-8 text (byte 0xff at line 1, column 14 cannot be read)"),
     (b"frequency 50\nV1: voltage a -> 0 1\x00\n", "error: the file is not text"),
     (b"", "error: the circuit is empty"),
 ])
@@ -294,3 +295,11 @@ def test_a_huge_line_is_shown_as_a_window_around_the_caret():
     shown, caret = text.splitlines()[1:3]
     assert len(shown) < 400
     assert shown[caret.index("^")] == "q"
+
+
+def test_utf16_with_a_byte_order_mark_is_read(tmp_path):
+    # common practice, no source: editors on some systems save "Unicode" as UTF-16 + BOM
+    path = tmp_path / "wide.circuit"
+    path.write_bytes("frequency 50\nV: voltage a -> 0 1\nR: resistor a -> 0 5\n".encode("utf-16"))
+    done = run_module("check", str(path))
+    assert done.returncode == 0 and "ok: 2 elements" in done.stdout

@@ -40,10 +40,18 @@ def read_source(path: str) -> tuple[str, str]:
         except OSError as exc:
             raise InputFileError(f"{name}: error: cannot read it ({exc.strerror})") from None
     try:
-        text = data.decode("utf-8-sig")
+        if data[:2] in (b"\xff\xfe", b"\xfe\xff"):     # an editor's UTF-16, marked
+            text = data.decode("utf-16")
+        else:
+            text = data.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
-        raise InputFileError(f"{name}: error: not UTF-8 text (byte {exc.start + 1} cannot "
-                             "be read); save the circuit as UTF-8 text") from None
+        line = data.count(b"\n", 0, exc.start) + 1
+        column = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
+        # circuit-language.md: a file that is not text is an error of no line; the
+        # message still says where the unreadable byte is.
+        raise InputFileError(f"{name}: error: not UTF-8 text (byte 0x{data[exc.start]:02x} "
+                             f"at line {line}, column {column} cannot be read); save the "
+                             "circuit as UTF-8 text") from None
     return text, name
 
 
