@@ -145,7 +145,7 @@ def _close_hint(name: str, elements) -> str:
     return f"did you mean '{close[0]}'?" if close else "name an element of the circuit"
 
 
-class _Forest:
+class Forest:
     """Union-find that also remembers the branches it joined, to name a loop's members."""
 
     def __init__(self):
@@ -192,7 +192,7 @@ class _Forest:
 
 def _voltage_loops(circuit: Circuit) -> list[Diagnostic]:
     found = []
-    forest = _Forest()
+    forest = Forest()
     transformers = []
     for element in circuit.elements.values():
         kind = element.kind
@@ -249,6 +249,16 @@ class _Terminals:
         size = len(self.nodes)
         graph = coo_matrix((np.ones(len(p)), (p, n)), shape=(size, size))
         return connected_components(graph, directed=False)[1]
+
+
+def conductive_parts(circuit: Circuit) -> dict[str, int]:
+    """Each node's part: nodes joined by any branch or transformer winding share a label.
+
+    A current drawn between two different parts has no way back, so a port across parts
+    carries no current whatever is connected to it.
+    """
+    table = _Terminals(circuit)
+    return dict(zip(table.nodes, table.components().tolist()))
 
 
 def check_topology(circuit: Circuit) -> tuple[list[Diagnostic], tuple[str, ...]]:

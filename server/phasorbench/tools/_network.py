@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..checks import check_structure, is_short
+from ..checks import Forest, check_structure, is_short
 from ..errors import CircuitError, Diagnostic
 from ..model import GROUND, SOURCE_KINDS, VOLTAGE_KINDS, Circuit, Element
 from ..solver import Solution, solve
@@ -87,50 +87,19 @@ def probe_element(circuit: Circuit, p: str, n: str, taken: set[str] = frozenset(
     return Element(name, "current", (p, n), 1.0 + 0j)
 
 
-def conductive_parts(circuit: Circuit) -> dict[str, str]:
-    """Each node's part: nodes joined by any branch or winding share a root.
-
-    A current drawn between two different parts has no way back, so a port across
-    parts carries no current whatever is connected to it.
-    """
-    parent = {node: node for node in circuit.nodes()}
-
-    def find(node: str) -> str:
-        while parent[node] != node:
-            parent[node] = parent[parent[node]]
-            node = parent[node]
-        return node
-
-    for e in circuit.elements.values():
-        pairs = [e.nodes[0:2], e.nodes[2:4]] if e.kind == "transformer" else [e.nodes]
-        for a, b in pairs:
-            ra, rb = find(a), find(b)
-            if ra != rb:
-                parent[rb] = ra
-    return {node: find(node) for node in parent}
-
-
 def voltage_joined(circuit: Circuit, a: str, b: str) -> bool:
     """True when ideal branches alone fix V(a) − V(b), so the impedance between is 0.
 
     Voltage-type branches and zero impedances fix the voltage across them; an ideal
     transformer with one winding fixed fixes the other too.
     """
-    parent: dict[str, str] = {}
-
-    def find(node: str) -> str:
-        parent.setdefault(node, node)
-        while parent[node] != node:
-            parent[node] = parent[parent[node]]
-            node = parent[node]
-        return node
+    forest = Forest()
 
     def join(x: str, y: str) -> bool:
-        rx, ry = find(x), find(y)
-        if rx != ry:
-            parent[ry] = rx
-            return True
-        return False
+        if forest.joined(x, y):
+            return False
+        forest.join(x, y, "")
+        return True
 
     for e in circuit.elements.values():
         if e.kind in VOLTAGE_KINDS or is_short(e):
@@ -140,11 +109,11 @@ def voltage_joined(circuit: Circuit, a: str, b: str) -> bool:
     while changed:
         changed = False
         for p1, n1, p2, n2 in windings:
-            if find(p1) == find(n1):
+            if forest.joined(p1, n1):
                 changed |= join(p2, n2)
-            elif find(p2) == find(n2):
+            elif forest.joined(p2, n2):
                 changed |= join(p1, n1)
-    return a == b or find(a) == find(b)
+    return a == b or forest.joined(a, b)
 
 
 def port_voltages(solution: Solution, ports) -> np.ndarray:

@@ -25,12 +25,13 @@ import math
 import numpy as np
 from scipy.optimize import brentq
 
+from ..checks import conductive_parts
 from ..superposition import analysis_frequency_only
 from ..model import SOURCE_KINDS, Circuit, Element
 from ..results import contract
 from ..solver import solve
 from ._correction_report import report
-from ._network import (canonical_node, conductive_parts, derived, fresh_name, input_error,
+from ._network import (canonical_node, derived, fresh_name, input_error,
                        port_model)
 
 __all__ = ["correct_power_factor"]

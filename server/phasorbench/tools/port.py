@@ -11,10 +11,11 @@ and the best plain resistor, R = |Z_th|.
 
 from __future__ import annotations
 
+from ..checks import conductive_parts
 from ..superposition import analysis_frequency_only
 from ..model import Circuit
 from ..results import phasor_dict
-from ._network import canonical_node, conductive_parts, input_error, port_model, voltage_joined
+from ._network import canonical_node, input_error, port_model, voltage_joined
 
 __all__ = ["port_equivalent"]
 
