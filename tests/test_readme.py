@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pytest
 
-from phasorbench.cautions import CAUTIONS
+from phasorbench.presentation.cautions import CAUTIONS
 from phasorbench.cli import build_parser
 from phasorbench.web.settings import SETTINGS_HELP
 

@@ -9,7 +9,7 @@ from datetime import datetime, timedelta, timezone
 import pytest
 
 from phasorbench import __version__
-from phasorbench.cautions import CAUTIONS, SCOPE_NOTE
+from phasorbench.presentation.cautions import CAUTIONS, SCOPE_NOTE
 from phasorbench.errors import CircuitError, source_lines as reader_lines
 from phasorbench.sheet import sheet_context, sheet_filename
 from phasorbench.sheet.choice import DEFAULT_WAVEFORMS, MAX_PHASORS

@@ -9,7 +9,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from phasorbench.cautions import CAUTIONS, SCOPE_NOTE
+from phasorbench.presentation.cautions import CAUTIONS, SCOPE_NOTE
 from phasorbench.errors import CircuitError
 from phasorbench.sheet import render_sheet
 from phasorbench.sheet.render import cell_breaks

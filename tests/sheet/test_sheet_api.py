@@ -104,7 +104,7 @@ def test_route_is_in_the_api_schema(api):
 
 
 def test_power_tools_same_as_the_command_line(api, tmp_path, capsys):
-    from .test_sheet_cli import MOTOR
+    from tests.cli.test_sheet import MOTOR
     path = tmp_path / "motor.circuit"
     path.write_text(MOTOR, encoding="utf-8")
     out = tmp_path / "motor.html"

@@ -12,7 +12,7 @@ import httpx
 import pytest
 
 from phasorbench import workflow
-from phasorbench.cautions import CAUTIONS, SCOPE_NOTE
+from phasorbench.presentation.cautions import CAUTIONS, SCOPE_NOTE
 from phasorbench.web.jsonsafe import jsonable
 
 from .conftest import (BENCH_CIRCUIT, BENCH_I_DEG, BENCH_I_MAG, CAP_CIRCUIT, ROOT, Api,

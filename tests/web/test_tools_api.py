@@ -415,7 +415,7 @@ def test_three_phase_view_of_an_unknown_block_is_422(api, netlist, group, words)
 def test_the_plant_sample_solves_with_block_rows():
     # The real three-phase sample: every block is a row whose phases are its elements,
     # and the block totals add up its phases (IEEE 1459: total P, Q sum over phases).
-    from phasorbench.web.display import group_rows
+    from phasorbench.presentation.display import group_rows
     from phasorbench.workflow import solve_text
 
     result = solve_text((ROOT / "samples" / "plant-three-phase.circuit").read_text())

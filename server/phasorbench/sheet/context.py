@@ -3,7 +3,7 @@
 The template only places what this module hands it, so a test can check the sheet's
 content here without reading markup. Every number is formatted by
 `phasorbench.formatting`, every picture drawn by `phasorbench.drawing`, the power
-summary and balance verdict are the page's own (``web/display.py``), and the
+summary and balance verdict are the page's own (``presentation/display.py``), and the
 cautions come from `phasorbench.cautions`: the sheet repeats no behaviour.
 """
 
@@ -15,12 +15,12 @@ import re
 from datetime import datetime, timezone
 
 from .. import __version__
-from .. import formatting as fmt
-from ..cautions import CAUTIONS, SCOPE_NOTE
-from ..drawing.phasors import phasor_diagram_svg
-from ..drawing.waveforms import waveform_svg
+from ..presentation import formatting as fmt
+from ..presentation.cautions import CAUTIONS, SCOPE_NOTE
+from ..presentation.drawing.phasors import phasor_diagram_svg
+from ..presentation.drawing.waveforms import waveform_svg
 from ..waveforms import sample_element
-from ..web.display import (balance_check, group_detail, group_rows, power_summary,
+from ..presentation.display import (balance_check, group_detail, group_rows, power_summary,
                            waveform_display)
 from .choice import (DEFAULT_PHASORS, DEFAULT_WAVEFORMS, MAX_PHASORS, MAX_WAVEFORMS, choose,
                      is_source)

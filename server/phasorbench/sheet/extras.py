@@ -1,7 +1,7 @@
 """Optional sections of the sheet: a power-factor correction or a port equivalent.
 
 Those results come from the power tools (``phasorbench.tools``) as plain dicts. The
-sheet shows them with the page's own strings for them (``web/display.py``:
+sheet shows them with the page's own strings for them (``presentation/display.py``:
 ``correction_display``, ``port_display``), so a result reads the same on the page and
 on paper. A dict those cannot read is shown as a two-column list instead: its key,
 and its value formatted by `phasorbench.formatting` with the unit its key names
@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import math
 
-from .. import formatting as fmt
+from ..presentation import formatting as fmt
 
 __all__ = ["extra_section", "tool_section"]
 
@@ -140,7 +140,7 @@ def tool_section(data: dict | None, tool: str, known=()) -> dict | None:
     if data is None:
         return None
     section = extra_section(data, _HEADINGS[tool], known)
-    from ..web.display import correction_display, port_display
+    from ..presentation.display import correction_display, port_display
     try:
         shown = (correction_display if tool == "correction" else port_display)(data)
     except (KeyError, TypeError, AttributeError, ValueError):

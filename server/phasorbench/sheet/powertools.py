@@ -28,8 +28,7 @@ def run_power_tools(text: str, filename: str = "<circuit>", *, correct: dict | N
     out = {"correction": None, "port": None}
     if correct is None and port is None:
         return out
-    from ..tools import correct_power_factor, port_equivalent
-    from ..web.answers import correction_place
+    from ..tools import correct_power_factor, correction_place, port_equivalent
     from ..workflow import read_circuit
 
     circuit = read_circuit(text, filename)

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import math
 
-from .. import formatting as fmt
+from ..presentation import formatting as fmt
 from ..model import CONTROLLED_KINDS, GROUND, SOURCE_KINDS
 
 __all__ = ["kcl_example", "ohm_example", "power_check"]

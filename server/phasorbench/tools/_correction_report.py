@@ -13,8 +13,8 @@ import math
 
 import numpy as np
 
-from .. import cautions as caution_texts
-from ..formatting import eng
+from ..presentation import cautions as caution_texts
+from ..presentation.formatting import eng
 from ..results import phasor_dict
 from . import capacitors as cap
 

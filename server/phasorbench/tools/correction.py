@@ -26,6 +26,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..checks import conductive_parts
+from ..errors import CircuitError, Diagnostic
 from ..superposition import analysis_frequency_only
 from ..model import SOURCE_KINDS, Circuit, Element
 from ..results import contract
@@ -428,3 +429,14 @@ def _leg_voltages(solution, place: dict) -> list[complex]:
         return [x - star for x in lines]
     return [v[p] - v[n] for p, n in place["legs"]]
 
+
+def correction_place(at, across):
+    """The tool's ``at`` from the request's ``at`` (node or list) or ``across`` (two nodes)."""
+    if at is not None and across is not None:
+        raise CircuitError([Diagnostic("give the place as 'at' or as 'across', not both",
+                                       "at: a node or three line nodes; across: two nodes")])
+    if across is not None:
+        return tuple(across)
+    if isinstance(at, list):
+        return at[0] if len(at) == 1 else tuple(at)
+    return at or None

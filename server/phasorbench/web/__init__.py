@@ -1,6 +1,6 @@
 """The local web server of phasorbench: JSON API and the workbench page.
 
-``create_app()`` in ``app.py`` lists every route; ``serve.py`` is the ``serve`` command.
+``create_app()`` in ``app.py`` lists every route; the ``serve`` command is ``cli/serve.py``.
 This package is a thin shell over ``workflow.py``: it imports FastAPI and Jinja2,
 which the core never does. They are imported on first use, so the command line's
 ``solve`` does not pay for them.

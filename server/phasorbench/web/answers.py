@@ -8,12 +8,12 @@ formats a number itself. Input problems raise ``CircuitError``.
 from __future__ import annotations
 
 from .. import workflow
-from ..drawing.phasors import phasor_diagram_svg, three_phase_svg
-from ..drawing.waveforms import waveform_svg
+from ..presentation.drawing.phasors import phasor_diagram_svg, three_phase_svg
+from ..presentation.drawing.waveforms import waveform_svg
 from ..errors import CircuitError, Diagnostic
-from ..tools import correct_power_factor, port_equivalent
+from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
-from .display import (correction_display, group_detail, port_display, solve_display,
+from ..presentation.display import (correction_display, group_detail, port_display, solve_display,
                       waveform_display)
 from .limits import check_size
 from .settings import Settings
@@ -126,18 +126,6 @@ def three_phase_answer(text: str, group: str, size: dict, settings: Settings) ->
 def _read(text: str, settings: Settings):
     check_size(text, settings.max_elements)
     return workflow.read_circuit(text, PAGE_FILENAME)
-
-
-def correction_place(at, across):
-    """The tool's ``at`` from the request's ``at`` (node or list) or ``across`` (two nodes)."""
-    if at is not None and across is not None:
-        raise CircuitError([Diagnostic("give the place as 'at' or as 'across', not both",
-                                       "at: a node or three line nodes; across: two nodes")])
-    if across is not None:
-        return tuple(across)
-    if isinstance(at, list):
-        return at[0] if len(at) == 1 else tuple(at)
-    return at or None
 
 
 def correction_answer(text: str, ask: dict, settings: Settings) -> dict:

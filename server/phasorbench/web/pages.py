@@ -9,7 +9,7 @@ from __future__ import annotations
 from fastapi import Request
 
 from .. import __version__
-from ..cautions import CAUTIONS, SCOPE_NOTE
+from ..presentation.cautions import CAUTIONS, SCOPE_NOTE
 
 
 #: Headers of every page: scripts and data from this server only, no framing by other

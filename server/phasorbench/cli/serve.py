@@ -12,7 +12,7 @@ import sys
 import threading
 import webbrowser
 
-from .settings import (DEFAULT_HOST, DEFAULT_PORT, LOOPBACK_NAMES, MAX_ELEMENTS, SETTINGS_HELP,
+from ..web.settings import (DEFAULT_HOST, DEFAULT_PORT, LOOPBACK_NAMES, MAX_ELEMENTS, SETTINGS_HELP,
                        WILDCARD_HOSTS, Settings)
 
 __all__ = ["add_serve_arguments", "add_serve_command", "serve_main", "is_loopback", "page_url"]
@@ -62,7 +62,7 @@ def serve_main(args) -> int:
     """Run the server until interrupted; returns the exit status."""
     import uvicorn
 
-    from .app import create_app
+    from ..web.app import create_app
 
     if not 0 < args.port < 65536:
         print(f"phasorbench serve: --port must be between 1 and 65535, not {args.port}",

@@ -62,7 +62,7 @@ def test_solve_prints_the_table_and_exits_0(capsys, circuit_file):
         assert any(line.split()[:1] == [node] for line in out.splitlines())
 
 
-SAMPLES = sorted((Path(__file__).resolve().parents[1] / "samples").glob("*.circuit"))
+SAMPLES = sorted((Path(__file__).resolve().parents[2] / "samples").glob("*.circuit"))
 
 
 @pytest.mark.parametrize("sample", SAMPLES, ids=[p.stem for p in SAMPLES])

@@ -7,7 +7,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from phasorbench import formatting as fmt
+from phasorbench.presentation import formatting as fmt
 from phasorbench.workflow import solve_text
 
 # SI prefixes f … T and their powers of ten: BIPM, SI Brochure (9th ed., 2019),

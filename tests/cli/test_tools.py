@@ -16,7 +16,7 @@ import pytest
 
 from phasorbench.cli import main
 
-from .quoting import figures
+from tests.tools.quoting import figures
 
 C14 = """title C14
 frequency 60 Hz
@@ -165,7 +165,7 @@ def test_port_errors_exit_2(write, capsys):
 
 
 def test_the_installed_command_lists_the_tools():
-    # The console script registers both commands through tools_cli (cli.py _extensions).
+    # The console script registers both commands through cli.tools (cli.build_parser).
     done = subprocess.run([sys.executable, "-m", "phasorbench", "--help"], capture_output=True,
                           text=True, timeout=60)
     assert done.returncode == 0

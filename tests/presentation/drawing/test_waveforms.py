@@ -4,8 +4,8 @@ import math
 import re
 import xml.etree.ElementTree as ET
 
-from phasorbench import formatting as fmt
-from phasorbench.drawing import waveform_svg
+from phasorbench.presentation import formatting as fmt
+from phasorbench.presentation.drawing import waveform_svg
 from phasorbench.waveforms import sample_element
 from phasorbench.workflow import solve_text
 

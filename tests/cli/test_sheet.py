@@ -11,7 +11,7 @@ import pytest
 from phasorbench.cli import main
 from phasorbench.sheet import render_sheet
 
-from .conftest import NOW, RC_BENCH, ROOT, STAMP, element_text
+from tests.sheet.conftest import NOW, RC_BENCH, ROOT, STAMP, element_text
 
 BAD = """\
 frequency 50 Hz

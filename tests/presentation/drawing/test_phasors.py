@@ -7,8 +7,8 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from phasorbench import formatting as fmt
-from phasorbench.drawing import phasor_diagram_svg
+from phasorbench.presentation import formatting as fmt
+from phasorbench.presentation.drawing import phasor_diagram_svg
 from phasorbench.workflow import solve_text
 
 SVG = "{http://www.w3.org/2000/svg}"

@@ -12,9 +12,9 @@ import re
 import sys
 import textwrap
 
-from .cli import EXIT_OK, dump_json, load_source
-from .errors import CircuitError, Diagnostic, format_diagnostic
-from .formatting import eng, phasor, power_factor, rect
+from .common import EXIT_OK, dump_json, load_source, print_warnings
+from ..errors import CircuitError, Diagnostic
+from ..presentation.formatting import eng, phasor, power_factor, rect
 
 __all__ = ["add_tool_commands"]
 
@@ -83,16 +83,9 @@ def _rated_voltage(text: str | None) -> float | None:
     return float(match.group(1)) * (1e3 if match.group(2) else 1.0)
 
 
-def _print_warnings(result: dict, name: str, text: str) -> None:
-    for w in result.get("warnings", []):
-        d = Diagnostic(w["message"], w.get("hint", ""), w.get("line"), w.get("column"), 1,
-                       "warning")
-        print(format_diagnostic(d, name, text), file=sys.stderr)
-
-
 def command_correct(args) -> int:
-    from .tools.correction import correct_power_factor
-    from .workflow import read_circuit
+    from ..tools.correction import correct_power_factor
+    from ..workflow import read_circuit
 
     text, name = load_source(args)
     circuit = read_circuit(text, name)
@@ -107,18 +100,18 @@ def command_correct(args) -> int:
                                   rated_voltage=_rated_voltage(args.rated_voltage),
                                   bank=args.bank, neutral=args.neutral)
     sys.stdout.write(dump_json(result) + "\n" if args.json else correction_text(result))
-    _print_warnings(result, name, text)
+    print_warnings(result.get("warnings", []), name, text)
     return EXIT_OK
 
 
 def command_port(args) -> int:
-    from .tools.port import port_equivalent
-    from .workflow import read_circuit
+    from ..tools.port import port_equivalent
+    from ..workflow import read_circuit
 
     text, name = load_source(args)
     result = port_equivalent(read_circuit(text, name), args.a, args.b)
     sys.stdout.write(dump_json(result) + "\n" if args.json else port_text(result))
-    _print_warnings(result, name, text)
+    print_warnings(result.get("warnings", []), name, text)
     return EXIT_OK
 
 

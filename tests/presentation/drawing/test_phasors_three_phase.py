@@ -6,7 +6,7 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from phasorbench.drawing.phasors import phasor_diagram_svg, three_phase_svg
+from phasorbench.presentation.drawing.phasors import phasor_diagram_svg, three_phase_svg
 from phasorbench.workflow import solve_text
 
 SVG = "{http://www.w3.org/2000/svg}"

@@ -6,7 +6,7 @@ exactly the strings of the page and the sheet.
 
 from __future__ import annotations
 
-from .formatting import (ELEMENT_COLUMNS, NODE_COLUMNS, ROUND_OFF, eng, element_rows, node_rows,
+from ..presentation.formatting import (ELEMENT_COLUMNS, NODE_COLUMNS, ROUND_OFF, eng, element_rows, node_rows,
                          power_factor)
 
 

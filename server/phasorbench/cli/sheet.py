@@ -12,8 +12,8 @@ import os
 import sys
 import tempfile
 
-from .cli import EXIT_INPUT, EXIT_OK, load_source
-from .errors import Diagnostic, format_diagnostic
+from .common import EXIT_INPUT, EXIT_OK, load_source, print_warnings
+
 
 __all__ = ["add_sheet_command", "command_sheet"]
 
@@ -58,9 +58,9 @@ def _write(path: str, html: str) -> None:
 
 
 def command_sheet(args) -> int:
-    from .sheet import render_context, sheet_context
-    from .sheet.powertools import run_power_tools
-    from .workflow import solve_text
+    from ..sheet import render_context, sheet_context
+    from ..sheet.powertools import run_power_tools
+    from ..workflow import solve_text
     text, name = load_source(args)
     result = solve_text(text, name)
     correct = ({"source": args.correct[0], "target": args.correct[1]} if args.correct
@@ -80,7 +80,5 @@ def command_sheet(args) -> int:
                   file=sys.stderr)
             return EXIT_INPUT
     # Warnings as ``solve`` prints them (the sheet lists them too).
-    for w in result["warnings"]:
-        d = Diagnostic(w["message"], w["hint"], w["line"], w["column"], 1, "warning")
-        print(format_diagnostic(d, name, text), file=sys.stderr)
+    print_warnings(result["warnings"], name, text)
     return EXIT_OK

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import math
 
-from ..formatting import (ELEMENT_COLUMNS, MISSING, NODE_COLUMNS, ROUND_OFF, element_rows, eng,
+from .formatting import (ELEMENT_COLUMNS, MISSING, NODE_COLUMNS, ROUND_OFF, element_rows, eng,
                           node_rows, phasor, plain, power_factor, rect)
 
 #: Used only when a result carries no balance verdict of its own (results.py gives one):

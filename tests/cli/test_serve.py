@@ -6,7 +6,7 @@ import argparse
 
 import pytest
 
-from phasorbench.web import serve
+from phasorbench.cli import serve
 
 
 def parse(*argv):

@@ -1,0 +1,74 @@
+"""The ``phasorbench`` command line: one module per command family, one shared helper.
+
+- ``common.py``: reading the source (a file or ``-``), exit codes, diagnostics, JSON.
+- ``circuit.py``: ``solve`` and ``check``; ``terminal.py`` draws their tables.
+- ``tools.py``: ``correct`` and ``port``.
+- ``sheet.py``: ``sheet``.
+- ``serve.py``: ``serve`` (the web server is imported only when it runs).
+
+Exit status: 0 solved (or valid), 2 the input is wrong (every error printed as
+``FILE:LINE:COL: error: ...`` with the source line and a caret), 1 an internal failure.
+No traceback reaches the user unless ``PHASORBENCH_DEBUG=1`` is set.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import traceback
+
+from .. import __version__
+from ..errors import CircuitError
+from .common import (EXIT_INPUT, EXIT_INTERNAL, EXIT_OK, InputFileError, dump_json, load_source,
+                     print_diagnostics, read_source)
+
+__all__ = ["main", "build_parser", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "dump_json",
+           "load_source", "read_source"]
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """Every sub-command, registered by its own module."""
+    from .circuit import add_circuit_commands
+    from .serve import add_serve_command
+    from .sheet import add_sheet_command
+    from .tools import add_tool_commands
+
+    parser = argparse.ArgumentParser(
+        prog="phasorbench",
+        description="Solve AC circuits in sinusoidal steady state (phasors, nodal analysis).")
+    parser.add_argument("--version", action="version", version=f"phasorbench {__version__}")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for register in (add_circuit_commands, add_serve_command, add_sheet_command,
+                     add_tool_commands):
+        register(commands)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "run", None):
+        parser.print_help(sys.stderr)
+        return EXIT_INPUT
+    try:
+        return args.run(args)
+    except InputFileError as exc:
+        print(str(exc), file=sys.stderr)
+        return EXIT_INPUT
+    except CircuitError as exc:
+        name = getattr(args, "source_name", None) or getattr(args, "file", "<circuit>")
+        print_diagnostics(exc.diagnostics, name, getattr(args, "source_text", None))
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        return 130
+    except Exception as exc:  # the one place an unexpected failure is turned into a message
+        if os.environ.get("PHASORBENCH_DEBUG") == "1":
+            traceback.print_exc()
+        print(f"phasorbench: internal error: {type(exc).__name__}: {exc} (set "
+              "PHASORBENCH_DEBUG=1 for details and please report it)", file=sys.stderr)
+        return EXIT_INTERNAL
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,44 @@
+"""``phasorbench solve`` and ``phasorbench check``: one circuit, at its frequency."""
+
+from __future__ import annotations
+
+import sys
+
+from .common import EXIT_OK, dump_json, load_source, print_diagnostics, print_warnings
+
+__all__ = ["add_circuit_commands", "command_solve", "command_check"]
+
+
+def add_circuit_commands(commands) -> None:
+    """Register ``solve`` and ``check``."""
+    solve = commands.add_parser("solve", help="solve a circuit and print every node and branch")
+    solve.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
+    solve.add_argument("--json", action="store_true", help="print the result contract as JSON")
+    solve.set_defaults(run=command_solve)
+
+    check = commands.add_parser("check", help="validate a circuit without solving it")
+    check.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
+    check.set_defaults(run=command_check)
+
+
+def command_solve(args) -> int:
+    from ..workflow import solve_text
+    text, name = load_source(args)
+    result = solve_text(text, name)
+    if args.json:
+        sys.stdout.write(dump_json(result) + "\n")
+    else:
+        from .terminal import result_table
+        sys.stdout.write(result_table(result))
+    print_warnings(result["warnings"], name, text)
+    return EXIT_OK
+
+
+def command_check(args) -> int:
+    from ..workflow import read_circuit
+    text, name = load_source(args)
+    circuit = read_circuit(text, name)
+    print_diagnostics(circuit.warnings, name, text)
+    print(f"{name}: ok: {len(circuit.elements)} elements, {len(circuit.nodes())} nodes, "
+          f"{circuit.frequency:g} Hz, amplitudes {circuit.amplitudes}")
+    return EXIT_OK

@@ -1,0 +1,76 @@
+"""What every command shares: reading the circuit source, exit codes, diagnostics, JSON."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+from ..errors import Diagnostic, format_diagnostic, source_lines
+
+__all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
+           "load_source", "print_diagnostics", "print_warnings", "dump_json"]
+
+EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
+
+
+class InputFileError(Exception):
+    """The circuit file could not be read (missing, not text)."""
+
+
+def read_source(path: str) -> tuple[str, str]:
+    """Return (text, display name) of a circuit file, or of standard input for ``-``."""
+    if path == "-":
+        data = sys.stdin.buffer.read()
+        name = "<stdin>"
+    else:
+        name = path
+        try:
+            with open(path, "rb") as handle:
+                data = handle.read()
+        except FileNotFoundError:
+            raise InputFileError(f"{name}: error: no such file") from None
+        except IsADirectoryError:
+            raise InputFileError(f"{name}: error: is a folder, not a circuit file") from None
+        except OSError as exc:
+            raise InputFileError(f"{name}: error: cannot read it ({exc.strerror})") from None
+    try:
+        if data[:2] in (b"\xff\xfe", b"\xfe\xff"):     # an editor's UTF-16, marked
+            text = data.decode("utf-16")
+        else:
+            text = data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = data.count(b"\n", 0, exc.start) + 1
+        column = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
+        # circuit-language.md: a file that is not text is an error of no line; the
+        # message still says where the unreadable byte is.
+        raise InputFileError(f"{name}: error: not UTF-8 text (byte 0x{data[exc.start]:02x} "
+                             f"at line {line}, column {column} cannot be read); save the "
+                             "circuit as UTF-8 text") from None
+    return text, name
+
+
+def load_source(args) -> tuple[str, str]:
+    """Read the command's FILE and keep the text on ``args`` for error messages."""
+    text, name = read_source(args.file)
+    args.source_text, args.source_name = text, name
+    return text, name
+
+
+def print_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> None:
+    lines = source_lines(text) if text is not None else None     # split once, not per error
+    for d in diagnostics:
+        print(format_diagnostic(d, name, lines=lines), file=sys.stderr)
+
+
+def dump_json(data) -> str:
+    """JSON with no NaN or infinity (refused rather than written)."""
+    return json.dumps(data, ensure_ascii=False, allow_nan=False)
+
+
+def print_warnings(warnings: list[dict], name: str, text: str) -> None:
+    """Print a result's ``warnings`` (contract dicts) as ``FILE:LINE:COL: warning:`` lines."""
+    lines = source_lines(text) if text is not None else None
+    for w in warnings:
+        d = Diagnostic(w["message"], w.get("hint", ""), w.get("line"), w.get("column"), 1,
+                       "warning")
+        print(format_diagnostic(d, name, lines=lines), file=sys.stderr)
