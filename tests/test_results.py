@@ -175,3 +175,34 @@ def test_voltage_unbalance_of_a_balanced_acb_system_is_zero():
               "Y: load3 wye a b c -> 0 10 ohm")
     assert r["groups"]["G"]["voltage_unbalance"] < 1e-12
     assert r["groups"]["Y"]["voltage_unbalance"] < 1e-12
+
+
+def test_acb_sequence_values_and_unbalance_follow_one_rule():
+    # Issue's case. Fortescue (1918): a balanced set turning in the declared order is all
+    # positive sequence; V_an = 400/√3 ∠10° (common practice, no source).
+    r = solve("frequency 50 Hz\nG: voltage3 a b c -> 0 400 line sequence acb phase 10\n"
+              "L: load3 wye a b c -> 0 12 + j4, 8, 15 - j6")
+    g = r["groups"]["G"]
+    seq = {k: complex(v["re"], v["im"]) for k, v in g["sequence_voltage"].items()}
+    assert g["rotation"] == "acb"
+    assert seq["positive"] == pytest.approx(polar(400 / math.sqrt(3), 10), rel=1e-12)
+    assert abs(seq["negative"]) < 1e-12 and abs(seq["zero"]) < 1e-12
+    assert g["voltage_unbalance"] < 1e-14
+    # The load takes the sources' rotation: its unbalance is |V2|/|V1| of its own labels.
+    load = r["groups"]["L"]
+    assert load["rotation"] == "acb"
+    lv = {k: complex(v["re"], v["im"]) for k, v in load["sequence_voltage"].items()}
+    assert load["voltage_unbalance"] == pytest.approx(
+        abs(sequence_components([phasor(load["line_voltage"][p]) for p in ("ab", "bc", "ca")],
+                                "acb")[2]) /
+        abs(sequence_components([phasor(load["line_voltage"][p]) for p in ("ab", "bc", "ca")],
+                                "acb")[1]), rel=1e-12)
+    assert abs(lv["positive"]) > abs(lv["negative"])
+
+
+def test_acb_labels_are_the_abc_labels_swapped():
+    # Fortescue (1918): an acb-turning balanced set is the abc formulas' negative sequence
+    abc = sequence_components([polar(1, 0), polar(1, 120), polar(1, -120)])
+    acb = sequence_components([polar(1, 0), polar(1, 120), polar(1, -120)], "acb")
+    assert abs(abc[1]) < 1e-15 and abc[2] == pytest.approx(1 + 0j)
+    assert acb[1] == pytest.approx(1 + 0j) and abs(acb[2]) < 1e-15

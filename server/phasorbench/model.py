@@ -81,6 +81,9 @@ class Group:
     neutral: str | None           # the star point (None for delta)
     elements: tuple[str, ...]     # per-phase element names, phase order a, b, c
     line: int | None = None
+    #: The declared phase rotation of a ``voltage3`` block ("abc" or "acb"); None for a
+    #: load, which takes the rotation of the circuit's sources (see results.py).
+    rotation: str | None = None
 
 
 @dataclass

@@ -210,10 +210,29 @@ def _plausibility(solution: Solution, relative: float, z: np.ndarray) -> list[di
     return found
 
 
-def sequence_components(phases) -> tuple[complex, complex, complex]:
-    """Fortescue's zero, positive and negative sequence of (a, b, c), phase a reference."""
+def sequence_components(phases, rotation: str = "abc") -> tuple[complex, complex, complex]:
+    """Fortescue's zero, positive and negative sequence of (a, b, c), phase a reference.
+
+    'Positive' is the set turning in the declared ``rotation``: for ``acb`` it is the
+    set with b leading a by 120° (the one the a-b-c formulas call negative), so a
+    healthy source is positive-sequence whichever way it turns.
+    """
     zero, positive, negative = _FORTESCUE @ np.asarray(phases, dtype=complex)
+    if rotation == "acb":
+        positive, negative = negative, positive
     return complex(zero), complex(positive), complex(negative)
+
+
+def group_rotation(group, circuit) -> str:
+    """The phase rotation a block's sequence values are labelled for.
+
+    A three-phase source has its declared ``sequence``; a load takes the rotation of
+    the circuit's three-phase sources when they all agree, else (none, or mixed) abc.
+    """
+    if group.rotation is not None:
+        return group.rotation
+    declared = {g.rotation for g in circuit.groups.values() if g.rotation is not None}
+    return declared.pop() if len(declared) == 1 else "abc"
 
 
 def _group(group, result: dict, solution: Solution) -> dict:
@@ -228,9 +247,10 @@ def _group(group, result: dict, solution: Solution) -> dict:
     nodes = solution.node_voltages
     a, b, c = (nodes[x] for x in group.lines)
     line_voltages = np.array([a - b, b - c, c - a])
-    seq_v = sequence_components(v)
-    seq_i = sequence_components(i)
-    _, v1, v2 = sequence_components(line_voltages)
+    rotation = group_rotation(group, solution.circuit)
+    seq_v = sequence_components(v, rotation)
+    seq_i = sequence_components(i, rotation)
+    _, v1, v2 = sequence_components(line_voltages, rotation)
     out = {
         "kind": group.kind, "connection": group.connection, "lines": list(group.lines),
         "elements": list(group.elements),
@@ -240,10 +260,10 @@ def _group(group, result: dict, solution: Solution) -> dict:
         "sequence_current": dict(zip(("zero", "positive", "negative"),
                                      phasor_dicts(np.array(seq_i)))),
         "line_voltage": dict(zip(("ab", "bc", "ca"), phasor_dicts(line_voltages))),
-        # |V2|/|V1| of the line-to-line set; for a system turning in acb order the
-        # negative sequence is the one that turns, so the smaller over the larger.
-        "voltage_unbalance": (min(abs(v1), abs(v2)) / max(abs(v1), abs(v2))
-                              if max(abs(v1), abs(v2)) > 0 else None),
+        # |V2|/|V1| of the line-to-line set, both labelled for ``rotation`` like the
+        # sequence values above (one rule for both).
+        "rotation": rotation,
+        "voltage_unbalance": (abs(v2) / abs(v1) if abs(v1) > 0 else None),
         "line": group.line,
     }
     if group.connection == "wye":

@@ -420,8 +420,9 @@ class ElementReader:
                                     "rename the block or the element",
                                     self.line.tokens[0].start, self.line.tokens[0].end)
             self.parser.defined_at[element_name] = self.line.number
+        rotation = options.get("sequence", "abc") if kind == "voltage3" else None
         self.circuit.groups[name] = Group(name, kind, connection, lines, group_nodes,
-                                          tuple(names), self.line.number)
+                                          tuple(names), self.line.number, rotation)
 
     def finish(self) -> None:
         """Nothing is pending after the last line; kept for symmetry with the parser."""

@@ -259,6 +259,10 @@ def group_rows(result: dict) -> list[dict]:
     return rows
 
 
+def _turns(g: dict) -> str:
+    return "a, c, b" if g.get("rotation") == "acb" else "a, b, c"
+
+
 def group_detail(result: dict, name: str) -> dict:
     """What the three-phase view lists beside its picture, as strings.
 
@@ -297,7 +301,10 @@ def group_detail(result: dict, name: str) -> dict:
         "heading": f"{name}: {g.get('kind', '')} {g.get('connection', '')}, lines "
                    f"{_group_terminals(name, g)}",
         "note": (f"Sequence values are Fortescue's of the {what} voltages and currents, "
-                 "phase a the reference (a = 1∠120°); totals use the passive sign."),
+                 "phase a the reference (a = 1∠120°), labelled for the "
+                 f"{g.get('rotation', 'abc')} rotation (positive turns {_turns(g)}); "
+                 "the unbalance is negative over positive of the line voltages by the "
+                 "same labels; totals use the passive sign."),
         "phases": phases, "lines": lines, "sequence": sequence, "facts": facts,
     }
 

@@ -118,6 +118,16 @@ def _assumptions(result: dict) -> list[dict]:
                       "Ideal, ratio n: V1 = n·V2 and I1 = −I2/n. A transformer's row shows "
                       "the primary; the row below it the secondary; its P and Q are the sum "
                       "of both ports."))
+    if result.get("groups"):
+        rotations = sorted({g.get("rotation", "abc") for g in result["groups"].values()})
+        items.append(("Sequence values",
+                      "Fortescue's zero, positive and negative sequence, phase a the "
+                      "reference, labelled for the declared rotation (" +
+                      ", ".join(rotations) + "): positive is the set turning the way the "
+                      "sources turn (a source with sequence acb is positive-sequence when "
+                      "balanced); a load takes the rotation of the circuit's three-phase "
+                      "sources (abc when there are none or they differ). The voltage "
+                      "unbalance is |V₂|/|V₁| of the line voltages by the same labels."))
     if result.get("couplings"):
         items.append(("Coupled inductors",
                       "Mutual inductance M = k·√(L1·L2), the dotted end of each inductor is "
