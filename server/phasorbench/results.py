@@ -94,6 +94,8 @@ def _contract(solution: Solution) -> dict:
     z_ok = np.isfinite(z).tolist()
     v_dicts, i_dicts = phasor_dicts(v), phasor_dicts(i)
 
+    digits = (solution.digits if solution.digits is not None
+              else np.full(len(elements), 15))
     out_elements: dict[str, dict] = {}
     for k, e in enumerate(elements):
         kind = e.kind
@@ -106,6 +108,8 @@ def _contract(solution: Solution) -> dict:
             else None,
             "p_w": p_list[k], "q_var": q_list[k], "s_va": s_list[k],
             "pf": pf, "pf_sense": sense, "line": e.line,
+            # significant digits of V and I the extended-precision check trusts
+            "digits": int(digits[k]),
         }
         if kind == "transformer":
             v2, i2 = solution.secondary[e.name]

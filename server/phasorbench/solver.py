@@ -18,6 +18,8 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
+from . import accuracy
+from .accuracy import CLD, Stamps
 from .checks import is_short
 from .errors import AnalysisError, Diagnostic
 from .model import GROUND, Circuit
@@ -46,43 +48,24 @@ class Solution:
     secondary: dict[str, tuple[complex, complex]] = field(default_factory=dict)
     warnings: tuple[Diagnostic, ...] = ()
     condition: float | None = None
+    #: Significant digits of each element's voltage and current that the extended-
+    #: precision check trusts (0 to 15), in the order of ``names``.
+    digits: np.ndarray | None = None
 
     def __repr__(self) -> str:
         return (f"Solution({len(self.names)} elements, {len(self.node_voltages)} nodes, "
                 f"f={self.circuit.frequency:g} Hz, warnings={len(self.warnings)})")
 
 
-class _Triplets:
-    """Growing lists of (row, col, value) numpy chunks, joined once into a sparse matrix."""
-
-    def __init__(self):
-        self.rows, self.cols, self.vals = [], [], []
-
-    def add(self, rows, cols, vals) -> None:
-        rows = np.asarray(rows, dtype=np.int64)
-        cols = np.asarray(cols, dtype=np.int64)
-        vals = np.broadcast_to(np.asarray(vals, dtype=complex), rows.shape)
-        keep = (rows >= 0) & (cols >= 0)
-        self.rows.append(rows[keep])
-        self.cols.append(cols[keep])
-        self.vals.append(vals[keep])
-
-    def matrix(self, size: int) -> sp.csc_matrix:
-        if not self.rows:
-            return sp.csc_matrix((size, size), dtype=complex)
-        return sp.csc_matrix((np.concatenate(self.vals),
-                              (np.concatenate(self.rows), np.concatenate(self.cols))),
-                             shape=(size, size))
-
-
-def _admittance(kind: str, value: complex, omega: float) -> complex:
+def _impedance(kind: str, value: complex, omega) -> complex:
+    """A passive's own impedance (in extended precision when ``omega`` is)."""
     if kind == "resistor" or kind == "impedance":
-        return 1.0 / value
+        return CLD(value)
     if kind == "capacitor":
-        return 1j * omega * value
+        return 1.0 / (1j * omega * CLD(value))
     if kind == "inductor":
-        return 1.0 / (1j * omega * value)
-    return value  # admittance
+        return 1j * omega * CLD(value)
+    return 1.0 / CLD(value)  # admittance
 
 
 def solve(circuit: Circuit) -> Solution:
@@ -122,8 +105,11 @@ def _require_finite(solution: "Solution") -> None:
             "1e308 cannot be represented")])
 
 
-def _solve(circuit: Circuit) -> Solution:
-    omega = 2.0 * math.pi * circuit.frequency
+def _solve(circuit: Circuit, tiny: frozenset = frozenset()) -> Solution:
+    """One assembly and solve; ``tiny`` names passives given a branch-current unknown
+    because, solved in admittance form, their current came from a cancelling difference
+    of node voltages (see ``CANCELLATION_LIMIT``)."""
+    omega = 2 * accuracy.PI * accuracy.LD(circuit.frequency)   # extended precision
     table = circuit.table()              # built once, shared with the structure checks
     elements, names, values = table.elements, table.names, table.values
     count = len(elements)
@@ -148,6 +134,7 @@ def _solve(circuit: Circuit) -> Solution:
     sensing = np.flatnonzero((codes == _KIND_CODE["ccvs"]) | (codes == _KIND_CODE["cccs"]))
     special = {elements[k].sense_element for k in sensing.tolist()}
     special |= {name for c in circuit.couplings.values() for name in c.inductors}
+    special |= set(tiny)
     if special:
         position = dict(zip(names, range(count)))
         branch_mask[[position[name] for name in special]] = True
@@ -155,8 +142,8 @@ def _solve(circuit: Circuit) -> Solution:
     branch_of = {names[k]: n_nodes + j for j, k in enumerate(branch_rows.tolist())}
     size = n_nodes + len(branch_of)
 
-    A = _Triplets()
-    b = np.zeros(size, dtype=complex)
+    A = Stamps()
+    b = np.zeros(size, dtype=CLD)
 
     # Admittance-form passives: the bulk of any large circuit, stamped in one go.
     nodal_mask = (codes <= _KIND_CODE["admittance"]) & ~branch_mask
@@ -177,17 +164,23 @@ def _solve(circuit: Circuit) -> Solution:
         _stamp(elements[k], branch_of.get(names[k]), index, branch_of, omega, A, b)
     for coupling in circuit.couplings.values():
         a, c = coupling.inductors
-        zm = 1j * omega * coupling.m
+        zm = 1j * omega * accuracy.LD(coupling.m)
         A.add([branch_of[a], branch_of[c]], [branch_of[c], branch_of[a]], [-zm, -zm])
 
-    matrix = A.matrix(size)
-    x, condition, warnings = _factor_and_solve(matrix, b, circuit, node_names, branch_of)
+    matrix = accuracy.assembled(A, size)
+    x, error, condition, warnings = _factor_and_solve(matrix, A, b, circuit, node_names,
+                                                      branch_of)
 
-    v_ext = np.append(x[:n_nodes], 0.0)           # index -1 reads the appended 0 V
+    v_ext = np.append(x[:n_nodes], CLD(0))       # index -1 reads the appended 0 V
+    e_ext = np.append(error[:n_nodes], 0.0)
     voltage = v_ext[p_all] - v_ext[n_all]
-    current = np.zeros(count, dtype=complex)
+    v_error = e_ext[p_all] + e_ext[n_all]
+    current = np.zeros(count, dtype=CLD)
+    i_error = np.zeros(count)
     current[nodal_rows] = y * voltage[nodal_rows]
+    i_error[nodal_rows] = np.abs(y).astype(float) * v_error[nodal_rows]
     current[branch_rows] = x[n_nodes:]
+    i_error[branch_rows] = error[n_nodes:]
     secondary = {}
     for k in others:
         e = elements[k]
@@ -195,18 +188,66 @@ def _solve(circuit: Circuit) -> Solution:
             v2 = v_ext[index[e.nodes[2]]] - v_ext[index[e.nodes[3]]]
             secondary[e.name] = (complex(v2), complex(-e.value.real * current[k]))
         elif branch_mask[k]:
+            if e.name in tiny:
+                # V = Z·I from the element's own unknown: no difference of node voltages
+                voltage[k] = _impedance(e.kind, e.value, omega) * current[k]
+                v_error[k] = abs(complex(_impedance(e.kind, e.value, omega))) * i_error[k]
             continue
         elif e.kind == "current":
             current[k] = e.value
         elif e.kind == "vccs":
             current[k] = e.value * (v_ext[index[e.sense_nodes[0]]] -
                                     v_ext[index[e.sense_nodes[1]]])
+            i_error[k] = abs(e.value) * (e_ext[index[e.sense_nodes[0]]] +
+                                         e_ext[index[e.sense_nodes[1]]])
         elif e.kind == "cccs":
             current[k] = e.value * x[branch_of[e.sense_element]]
+            i_error[k] = abs(e.value) * error[branch_of[e.sense_element]]
 
-    node_voltages = dict(zip(all_nodes, v_ext[unknown].tolist()))
-    return Solution(circuit, names, node_voltages, voltage, current, secondary,
-                    tuple(circuit.warnings) + tuple(warnings), condition)
+    if not tiny and len(nodal_rows):
+        # A passive whose voltage is a difference of nearly equal node voltages: its
+        # current y·(Vp − Vn) has lost the digits the difference cancelled.
+        big = np.maximum(np.abs(v_ext[p_all[nodal_rows]]),
+                         np.abs(v_ext[n_all[nodal_rows]])).astype(float)
+        small = np.abs(voltage[nodal_rows]).astype(float)
+        cancelling = (big > CANCELLATION_LIMIT * small) & (big > 0)
+        if cancelling.any():
+            return _solve(circuit, frozenset(names[k] for k in nodal_rows[cancelling]))
+
+    trust = _trust(names, voltage, current, v_error, i_error)
+    node_voltages = dict(zip(all_nodes, v_ext[unknown].astype(complex).tolist()))
+    return Solution(circuit, names, node_voltages, voltage.astype(complex),
+                    current.astype(complex), secondary,
+                    tuple(circuit.warnings) + tuple(warnings) + trust[1], condition,
+                    trust[0])
+
+
+#: An element whose voltage is this many times smaller than its nodes' voltages is
+#: solved again with a current unknown of its own (its current is then not a
+#: difference that cancels).
+CANCELLATION_LIMIT = 1e3
+
+
+def _trust(names, voltage, current, v_error, i_error):
+    """Trusted significant digits of every element (the fewer of V and I), and the
+    warning naming those below ``accuracy.TRUST_DIGITS``."""
+    rel = np.maximum(accuracy.relative_error(v_error, voltage),
+                     accuracy.relative_error(i_error, current))
+    digits = accuracy.digits(rel)
+    low = np.flatnonzero(digits < accuracy.TRUST_DIGITS)
+    if not len(low):
+        return digits, ()
+    order = low[np.argsort(digits[low], kind="stable")]
+    listed = ", ".join(f"{names[k]} ({digits[k]} digits)" for k in order[:8].tolist())
+    more = f" and {len(low) - 8} more" if len(low) > 8 else ""
+    fewest = int(digits[order[0]])
+    return digits, (Diagnostic(
+        f"results have lost digits to round-off: only about {fewest} significant digits "
+        f"can be trusted for {listed}{more} (checked by the residual of the element "
+        "equations in extended precision)",
+        "values far apart in size (a tiny impedance beside large ones) or a circuit very "
+        "near resonance cause this; the digits shown are limited to those that can be "
+        "trusted", severity="warning"),)
 
 
 class _NodeIndex:
@@ -227,7 +268,7 @@ _KIND_CODE = {"resistor": 0, "impedance": 1, "capacitor": 2, "inductor": 3, "adm
 _FIRST_BRANCH_CODE = _KIND_CODE["voltage"]
 
 
-def _stamp(e, col, index, branch_of, omega, A: _Triplets, b: np.ndarray) -> None:
+def _stamp(e, col, index, branch_of, omega, A: Stamps, b: np.ndarray) -> None:
     """Stamp one element that is not a plain admittance (sources, branch-form elements)."""
     kind = e.kind
     if col is None:
@@ -263,7 +304,7 @@ def _stamp(e, col, index, branch_of, omega, A: _Triplets, b: np.ndarray) -> None
     elif kind == "ccvs":
         A.add([col], [branch_of[e.sense_element]], [-e.value])
     elif kind in ("resistor", "impedance", "capacitor"):
-        z = 0.0 if is_short(e) else 1.0 / _admittance(kind, e.value, omega)
+        z = 0.0 if is_short(e) else _impedance(kind, e.value, omega)
         A.add([col], [col], [-z])
     elif kind == "inductor":
         A.add([col], [col], [-1j * omega * e.value])
@@ -279,7 +320,8 @@ def _stamp(e, col, index, branch_of, omega, A: _Triplets, b: np.ndarray) -> None
         A.add([col, col], [col, branch_of[e.sense_element]], [1.0, -e.value])
 
 
-def _admittances(codes: np.ndarray, values: np.ndarray, omega: float) -> np.ndarray:
+def _admittances(codes: np.ndarray, values: np.ndarray, omega) -> np.ndarray:
+    values = values.astype(CLD)
     y = values.copy()
     by_z = codes <= _KIND_CODE["impedance"]
     y[by_z] = 1.0 / values[by_z]
@@ -290,13 +332,15 @@ def _admittances(codes: np.ndarray, values: np.ndarray, omega: float) -> np.ndar
     return y
 
 
-def _factor_and_solve(matrix, b, circuit, node_names, branch_of):
+def _factor_and_solve(matrix, stamps, b, circuit, node_names, branch_of):
+    """Factor, solve, refine against the unassembled stamps; returns (x in extended
+    precision, componentwise error estimate, condition estimate, warnings)."""
     size = matrix.shape[0]
     if size == 0:
-        return np.zeros(0, dtype=complex), 1.0, []
+        return np.zeros(0, dtype=CLD), np.zeros(0), 1.0, []
     try:
         lu = splu(matrix)
-        x = lu.solve(b)
+        x = lu.solve(b.astype(complex))
     except RuntimeError:
         raise _singular(matrix, circuit, node_names, branch_of) from None
     if not np.all(np.isfinite(x)):
@@ -312,7 +356,8 @@ def _factor_and_solve(matrix, b, circuit, node_names, branch_of):
             f"{trust}",
             "very large and very small impedances side by side, or a circuit at or near "
             "resonance, cause this; check values and units", severity="warning"))
-    return x, condition, warnings
+    x, error, _ = accuracy.refine(lu, stamps, b, x)
+    return x, error, condition, warnings
 
 
 def _safe_inverse(values: np.ndarray) -> np.ndarray:
