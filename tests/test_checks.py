@@ -301,3 +301,15 @@ def test_sensing_a_block_points_at_its_phases():
     [error] = check_text("frequency 50\nG: voltage3 a b c -> 0 1\nM: load3 wye a b c -> 0 5\n"
                          "F: cccs x -> 0 2 sense M\nRx: resistor x -> 0 1")
     assert "three-phase block" in error.message and "M.a" in error.hint
+
+
+def test_a_controlled_sources_sense_node_is_not_dangling():
+    # Issue case (common practice, no source: an amplifier's input is sensed, not fed)
+    from phasorbench.workflow import check_text
+    found = check_text("frequency 50 Hz\nV1: voltage in -> 0 1\n"
+                       "E1: vcvs out -> 0 1e5 sense in -> fb\nR1: resistor out -> fb 10k\n"
+                       "R2: resistor fb -> 0 1k")
+    assert not [d for d in found if "one terminal only" in d.message]
+    # a node that nothing senses and one terminal reaches is still a warning
+    found = check_text("frequency 50 Hz\nV1: voltage in -> 0 1\nR1: resistor in -> x 1k")
+    assert [d for d in found if "one terminal only" in d.message and "'x'" in d.message]

@@ -211,3 +211,25 @@ def test_acb_labels_are_the_abc_labels_swapped():
     acb = sequence_components([polar(1, 0), polar(1, 120), polar(1, -120)], "acb")
     assert abs(abc[1]) < 1e-15 and abc[2] == pytest.approx(1 + 0j)
     assert acb[1] == pytest.approx(1 + 0j) and abs(acb[2]) < 1e-15
+
+
+def test_zero_power_elements_report_one_rule():
+    # Issue case: an ideal transformer takes no power (V1·I1* + V2·I2* = 0, common
+    # practice, no source); its round-off |S| must read pf 1.0 'unity', like any other
+    # zero-power element
+    r = solve("frequency 50 Hz\nV1: voltage p -> 0 230\n"
+              "T: transformer p -> 0, s -> 0 ratio 10:1\nR: impedance s -> 0 5 + j3\n"
+              "C: capacitor p -> 0 1 uF")
+    t = r["elements"]["T"]
+    assert t["s_va"] < 1e-9 * r["elements"]["R"]["s_va"]
+    assert (t["pf"], t["pf_sense"]) == (1.0, "unity")
+
+
+def test_coupled_inductor_impedance_is_its_own_jwl():
+    # Issue case: 40 mH at 50 Hz: Z = jωL = j12.566 Ω (formula), whatever the coupling
+    # does to V/I; the mutual is reported on the coupling (M = k·√(L1·L2), formula)
+    r = solve("frequency 50 Hz\nV1: voltage a -> 0 10\nL1: inductor a -> 0 40 mH\n"
+              "L2: inductor b -> 0 10 mH\nR2: resistor b -> 0 2\nK: coupling L1 L2 k 0.9")
+    z = r["elements"]["L1"]["impedance"]
+    assert complex(z["re"], z["im"]) == pytest.approx(2j * math.pi * 50 * 40e-3, rel=1e-14)
+    assert r["couplings"]["K"]["m_h"] == pytest.approx(0.9 * math.sqrt(40e-3 * 10e-3))

@@ -342,6 +342,10 @@ def _island_references(circuit, table: _Terminals, island: np.ndarray, found) ->
 
 def _dangling(table: _Terminals, skip: set[str]) -> list[Diagnostic]:
     counts = np.bincount(np.concatenate([table.p, table.n]), minlength=len(table.nodes))
+    # a controlled source's sense terminal is a terminal too: a node it reads on purpose
+    # (an amplifier's input) is not a misspelling
+    sensed = {node for e in table.elements if e.sense_nodes for node in e.sense_nodes}
+    skip = set(skip) | sensed
     found = []
     for k in np.flatnonzero(counts == 1).tolist():
         node = table.nodes[k]

@@ -44,8 +44,23 @@ def phasor_dict(value: complex) -> dict:
     return phasor_dicts(np.array([value]))[0]
 
 
-def power_factor(p: float, q: float, s: float, source: bool) -> tuple[float, str]:
-    """The contract's ``pf`` and ``pf_sense`` for one element or group."""
+#: |S| at or below this many double-precision round-offs of the circuit's largest |S|
+#: is zero power: its P and Q are round-off, so it reports pf 1.0 and 'unity'.
+ZERO_POWER_ROUNDOFFS = 1024
+
+
+def zero_power_floor(apparent: np.ndarray | list) -> float:
+    """The |S| below which an element's power is round-off of the circuit's scale."""
+    largest = float(np.max(np.abs(apparent), initial=0.0))
+    return ZERO_POWER_ROUNDOFFS * float(np.finfo(float).eps) * largest
+
+
+def power_factor(p: float, q: float, s: float, source: bool,
+                 floor: float = 0.0) -> tuple[float, str]:
+    """The contract's ``pf`` and ``pf_sense`` for one element or group: one rule for
+    zero power (``s`` at or below ``floor``, see ``zero_power_floor``): 1.0, 'unity'."""
+    if s <= floor:
+        return 1.0, "unity"
     pf = abs(p) / s if s > 0 else 1.0
     if s == 0 or abs(q) <= UNITY_Q_FRACTION * s:
         return min(pf, 1.0), "unity"
@@ -96,11 +111,12 @@ def _contract(solution: Solution) -> dict:
 
     digits = (solution.digits if solution.digits is not None
               else np.full(len(elements), 15))
+    floor = zero_power_floor(s_list)
     out_elements: dict[str, dict] = {}
     for k, e in enumerate(elements):
         kind = e.kind
         passive = kind not in SOURCE_KINDS and kind not in CONTROLLED_KINDS
-        pf, sense = power_factor(p_list[k], q_list[k], s_list[k], not passive)
+        pf, sense = power_factor(p_list[k], q_list[k], s_list[k], not passive, floor)
         entry = {
             "kind": kind, "from": e.nodes[0], "to": e.nodes[1],
             "voltage": v_dicts[k], "current": i_dicts[k],
@@ -148,13 +164,14 @@ def _contract(solution: Solution) -> dict:
             c.name: {"inductors": list(c.inductors), "k": c.k, "m_h": c.m, "line": c.line}
             for c in circuit.couplings.values()}
     if circuit.groups:
-        result["groups"] = {name: _group(group, result, solution)
+        result["groups"] = {name: _group(group, result, solution, floor)
                             for name, group in circuit.groups.items()}
     return result
 
 
 def _impedances(elements, v: np.ndarray, i: np.ndarray, circuit) -> np.ndarray:
-    """The element's own impedance: exact from its value, V/I where coupling changes it.
+    """The element's own impedance, exact from its value (a coupled inductor's is its
+    own jωL: the mutual term belongs to the coupling, reported with ``m_h``).
 
     Infinite or undefined impedances (an open admittance, a current of zero) are NaN
     here and null in the contract.
@@ -169,7 +186,7 @@ def _impedances(elements, v: np.ndarray, i: np.ndarray, circuit) -> np.ndarray:
     z[by_value] = values[by_value]
     cap = free & (kinds == "capacitor")
     z[cap] = 1 / (1j * omega * values[cap])
-    ind = free & (kinds == "inductor")
+    ind = kinds == "inductor"           # coupled too: its own jωL; M is on the coupling
     z[ind] = 1j * omega * values[ind]
     adm = free & (kinds == "admittance")
     z[adm] = np.where(values[adm] != 0, 1 / np.where(values[adm] != 0, values[adm], 1), np.nan)
@@ -239,12 +256,12 @@ def group_rotation(group, circuit) -> str:
     return declared.pop() if len(declared) == 1 else "abc"
 
 
-def _group(group, result: dict, solution: Solution) -> dict:
+def _group(group, result: dict, solution: Solution, floor: float = 0.0) -> dict:
     members = [result["elements"][name] for name in group.elements]
     p = sum(m["p_w"] for m in members)
     q = sum(m["q_var"] for m in members)
     s = math.hypot(p, q)
-    pf, sense = power_factor(p, q, s, group.kind == "voltage3")
+    pf, sense = power_factor(p, q, s, group.kind == "voltage3", floor)
     index = {name: k for k, name in enumerate(solution.names)}
     v = np.array([solution.voltage[index[n]] for n in group.elements])
     i = np.array([solution.current[index[n]] for n in group.elements])

@@ -17,6 +17,7 @@ from dataclasses import replace
 
 from .errors import Diagnostic
 from .model import Circuit
+from .results import zero_power_floor
 
 #: Two source frequencies closer than this (relative) are the same frequency.
 SAME_FREQUENCY = 1e-12
@@ -74,6 +75,10 @@ def solve_superposed(circuit: Circuit) -> dict:
 def _rms_totals(results: list[dict], amplitudes: str) -> dict:
     to_rms = 1 / math.sqrt(2) if amplitudes == "peak" else 1.0
     totals = {}
+    # one rule for zero power (results.zero_power_floor): a zeroed source's P, Q are
+    # round-off, its pf is 1.0
+    floor = max((zero_power_floor([e["s_va"] for e in r["elements"].values()])
+                 for r in results), default=0.0)
     for name in results[0]["elements"]:
         parts = [r["elements"][name] for r in results]
         v = math.sqrt(sum(p["voltage"]["mag"] ** 2 for p in parts)) * to_rms
@@ -81,7 +86,7 @@ def _rms_totals(results: list[dict], amplitudes: str) -> dict:
         p_w = sum(p["p_w"] for p in parts)
         s = v * i
         totals[name] = {"v_rms": v, "i_rms": i, "p_w": p_w, "s_va": s,
-                        "pf": abs(p_w) / s if s > 0 else 1.0}
+                        "pf": abs(p_w) / s if s > floor else 1.0}
     return totals
 
 
