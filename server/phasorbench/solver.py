@@ -105,11 +105,18 @@ def _require_finite(solution: "Solution") -> None:
             "1e308 cannot be represented")])
 
 
-def _solve(circuit: Circuit, tiny: frozenset = frozenset()) -> Solution:
-    """One assembly and solve; ``tiny`` names passives given a branch-current unknown
-    because, solved in admittance form, their current came from a cancelling difference
-    of node voltages (see ``CANCELLATION_LIMIT``)."""
-    omega = 2 * accuracy.PI * accuracy.LD(circuit.frequency)   # extended precision
+_ASSEMBLY_FIELDS = ("omega", "table", "elements", "names", "count", "all_nodes", "unknown",
+                    "n_nodes", "node_names", "index", "p_all", "n_all", "branch_mask",
+                    "branch_rows", "branch_of", "size", "A", "b", "nodal_rows", "y",
+                    "others", "matrix")
+
+
+def assemble(circuit: Circuit, frequency: float, tiny: frozenset = frozenset()) -> dict:
+    """The MNA system of ``circuit`` at ``frequency`` (Hz): ``matrix`` (double CSC),
+    ``b`` (extended precision), ``n_nodes``, ``node_names``, ``branch_of`` and the
+    bookkeeping that reads element values back. The one builder shared by the
+    single-frequency solve and the studies' engine."""
+    omega = 2 * accuracy.PI * accuracy.LD(frequency)   # extended precision
     table = circuit.table()              # built once, shared with the structure checks
     elements, names, values = table.elements, table.names, table.values
     count = len(elements)
@@ -168,6 +175,18 @@ def _solve(circuit: Circuit, tiny: frozenset = frozenset()) -> Solution:
         A.add([branch_of[a], branch_of[c]], [branch_of[c], branch_of[a]], [-zm, -zm])
 
     matrix = accuracy.assembled(A, size)
+    scope = locals()
+    return {name: scope[name] for name in _ASSEMBLY_FIELDS}
+
+
+def _solve(circuit: Circuit, tiny: frozenset = frozenset()) -> Solution:
+    """One assembly and solve; ``tiny`` names passives given a branch-current unknown
+    because, solved in admittance form, their current came from a cancelling difference
+    of node voltages (see ``CANCELLATION_LIMIT``)."""
+    system = assemble(circuit, circuit.frequency, tiny)
+    (omega, table, elements, names, count, all_nodes, unknown, n_nodes, node_names, index,
+     p_all, n_all, branch_mask, branch_rows, branch_of, size, A, b, nodal_rows, y, others,
+     matrix) = (system[name] for name in _ASSEMBLY_FIELDS)
     x, error, condition, warnings = _factor_and_solve(matrix, A, b, circuit, node_names,
                                                       branch_of)
 
