@@ -17,6 +17,7 @@ from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
 from .errors import CircuitStructureError, CircuitSyntaxError, Diagnostic
+from .language.suggest import NameIndex
 from .model import CURRENT_KINDS, GROUND, PASSIVE_KINDS, VOLTAGE_KINDS, Circuit, Element
 
 _SOURCE_WORDS = {"voltage": "voltage source", "vcvs": "vcvs", "ccvs": "ccvs",
@@ -39,6 +40,7 @@ def check_references(circuit: Circuit) -> list[Diagnostic]:
     found: list[Diagnostic] = []
     nodes = set(circuit.nodes())
     elements = circuit.elements
+    names = NameIndex(elements)
     for element in elements.values():
         if element.sense_element is not None:
             target = elements.get(element.sense_element)
@@ -50,7 +52,7 @@ def check_references(circuit: Circuit) -> list[Diagnostic]:
                 elif sensed in circuit.couplings:
                     what, hint = "a coupling", "sense one of the coupled inductors"
                 else:
-                    what, hint = "not an element", _close_hint(sensed, elements)
+                    what, hint = "not an element", _close_hint(sensed, names)
                 found.append(Diagnostic(
                     f"{element.name} senses '{sensed}', which is {what}", hint, element.line,
                     1, len(element.name)))
@@ -139,10 +141,9 @@ def _check_coupling(circuit: Circuit, coupling) -> list[Diagnostic]:
     return found
 
 
-def _close_hint(name: str, elements) -> str:
-    import difflib
-    close = difflib.get_close_matches(name, list(elements), n=1)
-    return f"did you mean '{close[0]}'?" if close else "name an element of the circuit"
+def _close_hint(name: str, names: NameIndex) -> str:
+    close = names.closest(name)
+    return f"did you mean '{close}'?" if close else "name an element of the circuit"
 
 
 class Forest:

@@ -35,6 +35,10 @@ def source_lines(text: str) -> list[str]:
     return lines
 
 
+#: Characters kept of a message or a hint; diagnostics listed for one check.
+MAX_TEXT, MAX_LISTED = 400, 100
+
+
 @dataclass(frozen=True)
 class Diagnostic:
     """One message about the input, with its place when it has one.
@@ -50,10 +54,37 @@ class Diagnostic:
     length: int = 1
     severity: str = "error"
 
+    def __post_init__(self):
+        # Messages quote the input: a 300 KB token must not make a 300 KB message.
+        for field in ("message", "hint"):
+            value = getattr(self, field)
+            if len(value) > MAX_TEXT:
+                object.__setattr__(self, field, value[:MAX_TEXT - 1] + "\u2026")
+
     def as_dict(self) -> dict:
         """The contract's shape: ``{"line", "column", "message", "hint"}``."""
         return {"line": self.line, "column": self.column,
                 "message": self.message, "hint": self.hint}
+
+
+def bounded(diagnostics: list[Diagnostic], limit: int = MAX_LISTED) -> list[Diagnostic]:
+    """The first ``limit`` diagnostics (errors before warnings) and one line for the rest.
+
+    Error answers stay small whatever the input (300 KB of bad lines once gave 21 MB).
+
+    >>> many = [Diagnostic("bad", line=n, column=1) for n in range(1, 1006)]
+    >>> [d.message for d in bounded(many, 2)]
+    ['bad', 'bad', '… and 1,003 more like these (the first 2 are listed)']
+    """
+    if len(diagnostics) <= limit:
+        return list(diagnostics)
+    errors = [d for d in diagnostics if d.severity == "error"]
+    warnings = [d for d in diagnostics if d.severity != "error"]
+    kept = (errors + warnings)[:limit]
+    rest = len(diagnostics) - limit
+    severity = "error" if len(errors) > limit else "warning"
+    return kept + [Diagnostic(f"\u2026 and {rest:,} more like these (the first {limit} are "
+                              "listed)", "fix these and check again", severity=severity)]
 
 
 class PhasorbenchError(Exception):

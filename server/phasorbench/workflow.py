@@ -6,7 +6,7 @@ sequence or handles a half-finished circuit.
 
 from __future__ import annotations
 
-from .errors import CircuitError, Diagnostic
+from .errors import CircuitError, Diagnostic, bounded
 from .model import Circuit
 
 
@@ -20,7 +20,12 @@ def read_circuit(text: str, filename: str = "<circuit>") -> Circuit:
     from .language.parser import parse_circuit
 
     circuit, diagnostics = parse_circuit(text, filename, strict=False)
-    check_structure(circuit, diagnostics)
+    try:
+        check_structure(circuit, diagnostics)
+    except CircuitError as exc:
+        exc.diagnostics = bounded(exc.diagnostics)
+        raise
+    circuit.warnings = bounded(circuit.warnings)
     return circuit
 
 

@@ -17,6 +17,7 @@ from ..model import Circuit
 from .elements import SIMPLE_ELEMENT, ElementReader
 from .expressions import LanguageError, Quantity, TokenStream
 from .lexer import Token, tokenize
+from .suggest import NameIndex
 from .values import expect_unit, parse_value
 
 NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
@@ -62,6 +63,8 @@ class CircuitParser:
         self.directive_lines: dict[str, int] = {}
         #: Element lines dropped for a bad name: the file has elements, just not readable.
         self.unread_elements = 0
+        #: Did-you-mean over the named values, built at the first miss.
+        self.value_names: NameIndex | None = None
 
     # -- diagnostics ------------------------------------------------------------------
 
@@ -91,8 +94,10 @@ class CircuitParser:
         if name in self.element_names:
             raise LanguageError(f"'{name}' is an element, not a named value",
                                 "use a named value (NAME = VALUE) here", token.start, token.end)
-        close = difflib.get_close_matches(name, list(self.assignments), n=1)
-        hint = f"did you mean '{close[0]}'?" if close else \
+        if self.value_names is None:
+            self.value_names = NameIndex(self.assignments)
+        close = self.value_names.closest(name)
+        hint = f"did you mean '{close}'?" if close else \
             "define it on its own line, e.g. Cpf = 150 uF (or check the spelling)"
         raise LanguageError(f"'{name}' is not a number, a unit or a named value", hint,
                             token.start, token.end)
