@@ -364,3 +364,26 @@ def test_a_body_that_is_not_json_gets_the_error_shape(api):
     assert 400 <= r.status_code < 500
     body = r.json()
     assert set(body) == {"errors", "warnings"} and body["errors"][0]["message"]
+
+
+# An origin is the triple scheme, host, port (RFC 6454, section 4; section 5 compares
+# all three): a page at http://127.0.0.1 (port 80) or over https is another origin
+# than this server at http://127.0.0.1:8000.
+@pytest.mark.parametrize("origin", ["http://127.0.0.1", "http://localhost", "http://[::1]",
+                                    "http://127.0.0.1:8001", "https://127.0.0.1:8000",
+                                    "http://localhost:80", "ftp://127.0.0.1:8000"])
+def test_origin_on_another_port_or_scheme_gets_403(api, origin):
+    r = api.post("/api/solve", json={"netlist": CAP_CIRCUIT}, headers={"origin": origin})
+    assert r.status_code == 403
+
+
+def test_origin_with_the_ephemeral_port_of_the_request_is_served(make_api):
+    # Settings(port=0): the port the request was addressed to is the server's own
+    # (RFC 6454, section 5: same scheme, host and port).
+    api = make_api(port=0)
+    api.base_url = "http://127.0.0.1:43210"
+    ok = api.post("/api/solve", json={"netlist": CAP_CIRCUIT},
+                  headers={"origin": "http://127.0.0.1:43210"})
+    other = api.post("/api/solve", json={"netlist": CAP_CIRCUIT},
+                     headers={"origin": "http://127.0.0.1:43211"})
+    assert (ok.status_code, other.status_code) == (200, 403)

@@ -68,13 +68,24 @@ class HostOriginGuard:
         # the name alone is what defeats DNS rebinding, so accept it.
         return port is None or not wanted or port == wanted
 
-    def origin_is_ours(self, origin: str) -> bool:
+    def origin_is_ours(self, origin: str, host: str | None = None) -> bool:
+        """An origin is scheme, host AND port (RFC 6454, section 4): only
+        ``http://NAME:PORT`` of this server's own port is ours. ``http://127.0.0.1``
+        (port 80) or ``https://localhost:PORT`` are other origins."""
         if origin == "null":            # sandboxed frames and file:// pages
             return False
         parts = urlsplit(origin)
-        if parts.scheme not in ("http", "https") or not parts.netloc:
+        if parts.scheme != "http" or not parts.netloc or parts.path or parts.query:
+            return False                # this server speaks plain http only
+        parsed = split_host(parts.netloc)
+        if parsed is None or parsed[0] not in self.names:
             return False
-        return self.host_is_ours(parts.netloc)
+        port = 80 if parsed[1] is None else parsed[1]
+        wanted = self.settings.port
+        if not wanted:                  # ephemeral port: the port the request came to
+            own = split_host(host or "")
+            wanted = 80 if own is None or own[1] is None else own[1]
+        return port == wanted
 
     async def __call__(self, scope, receive, send):
         if scope["type"] != "http":
@@ -89,7 +100,7 @@ class HostOriginGuard:
         if method not in _SAFE_METHODS:
             origin = headers.get("origin")
             fetch_site = headers.get("sec-fetch-site")
-            if (origin is not None and not self.origin_is_ours(origin)) or fetch_site == "cross-site":
+            if (origin is not None and not self.origin_is_ours(origin, headers.get("host"))) or fetch_site == "cross-site":
                 await _refuse(send, 403, "requests from another site's page are refused",
                               "use the workbench page served by this server")
                 return
