@@ -19,7 +19,7 @@ from starlette.routing import Mount
 from starlette.staticfiles import StaticFiles
 
 from .. import __version__
-from . import api, pages, sheet_routes
+from . import api, pages, sheet_routes, study_routes
 from .guards import HostOriginGuard
 from starlette.exceptions import HTTPException as StarletteHTTPException
 from .jsonsafe import StrictJSONResponse
@@ -49,6 +49,7 @@ def _routes(settings: Settings) -> list:
              "Three-phase view of a block: phasor SVG, phase, line and sequence values"),
         post("/api/correct", api.correct, "Size the power-factor correction capacitor of a source"),
         post("/api/port", api.port, "Thevenin and Norton equivalents seen from two nodes"),
+        post("/api/sweep", study_routes.sweep, "Frequency response of probes over a range"),
         *sheet_routes.router.routes,          # POST /api/sheet: the solved sheet download
         APIRoute("/api/samples", api.samples, methods=["GET"], summary="List the sample circuits",
                  response_class=StrictJSONResponse),

@@ -1,0 +1,46 @@
+"""POST /api/sweep: the sweep JSON, 422 in the language's error shape, the work bound."""
+
+from __future__ import annotations
+
+import math
+
+from .test_tools_api import api  # noqa: F401  (the threaded client fixture)
+
+RLC = """frequency 50 Hz
+Vs: voltage a -> 0 20 V
+R1: resistor a -> b 2 ohm
+L1: inductor b -> c 1 mH
+C1: capacitor c -> 0 0.4 uF
+"""
+
+
+def test_sweep_answers_the_study_json(api):  # noqa: F811
+    r = api.post("/api/sweep", json={"netlist": RLC, "probes": ["I(R1)"], "from": 1000,
+                                     "to": 50000, "points": 100})
+    assert r.status_code == 200
+    body = r.json()
+    assert len(body["frequencies_hz"]) == 100 and body["frequencies_hz"][0] == 1000
+    (peak,) = body["resonances"]
+    # check-values C5: f0 = 7957.75 Hz, Q = 25
+    assert math.isclose(peak["frequency_hz"], 7957.75, rel_tol=1e-6)
+    assert math.isclose(peak["q"], 25, rel_tol=1e-5)
+
+
+def test_bad_probe_and_range_answer_422_with_every_error(api):  # noqa: F811
+    r = api.post("/api/sweep", json={"netlist": RLC, "probes": ["V(cc)"], "from": 10,
+                                     "to": 5})
+    assert r.status_code == 422                      # studies.md: HTTP 422, all in one pass
+    errors = r.json()["errors"]
+    assert len(errors) == 2
+    (probe,) = [e for e in errors if e["column"] is not None]
+    assert probe["column"] == 3 and "did you mean 'c'" in probe["hint"]
+
+
+def test_work_bound_is_stated(api):  # noqa: F811
+    r = api.post("/api/sweep", json={"netlist": RLC, "probes": ["V(c)"], "points": 1000})
+    # common practice, no source: a bounded server says its limit (3 × 1,000 is fine)
+    assert r.status_code == 200
+    big = "frequency 50 Hz\nVs: voltage n0 -> 0 1 V\n" + "".join(
+        f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\n" for k in range(60))
+    r = api.post("/api/sweep", json={"netlist": big, "probes": ["V(n5)"], "points": 100000})
+    assert r.status_code == 422 and "points × unknowns" in r.json()["errors"][0]["message"]
