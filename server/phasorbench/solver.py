@@ -223,17 +223,20 @@ def _solve(circuit: Circuit, tiny: frozenset = frozenset()) -> Solution:
             current[k] = e.value * x[branch_of[e.sense_element]]
             i_error[k] = abs(e.value) * error[branch_of[e.sense_element]]
 
-    if not tiny and len(nodal_rows):
+    trust = _trust(names, voltage, current, v_error, i_error)
+    if not tiny and len(nodal_rows) and trust[1]:
         # A passive whose voltage is a difference of nearly equal node voltages: its
-        # current y·(Vp − Vn) has lost the digits the difference cancelled.
+        # current y·(Vp − Vn) has lost the digits the difference cancelled. Solved
+        # again, only when that left it short of trusted digits, with a current
+        # unknown of its own.
         big = np.maximum(np.abs(v_ext[p_all[nodal_rows]]),
                          np.abs(v_ext[n_all[nodal_rows]])).astype(float)
         small = np.abs(voltage[nodal_rows]).astype(float)
-        cancelling = (big > CANCELLATION_LIMIT * small) & (big > 0)
+        cancelling = ((big > CANCELLATION_LIMIT * small) & (big > 0) &
+                      (trust[0][nodal_rows] < accuracy.TRUST_DIGITS))
         if cancelling.any():
             return _solve(circuit, frozenset(names[k] for k in nodal_rows[cancelling]))
 
-    trust = _trust(names, voltage, current, v_error, i_error)
     node_voltages = dict(zip(all_nodes, v_ext[unknown].astype(complex).tolist()))
     return Solution(circuit, names, node_voltages, voltage.astype(complex),
                     current.astype(complex), secondary,
@@ -357,15 +360,20 @@ def _factor_and_solve(matrix, stamps, b, circuit, node_names, branch_of):
     size = matrix.shape[0]
     if size == 0:
         return np.zeros(0, dtype=CLD), np.zeros(0), 1.0, []
+    scaling = _equilibration(matrix)
     try:
         lu = splu(matrix)
-        x = lu.solve(b.astype(complex))
+        # the solve and the condition estimate's first step share one pass over the
+        # factors
+        first = np.stack([b.astype(complex), np.full(size, 1.0 / size) / scaling[0]], 1)
+        both = lu.solve(first)
     except RuntimeError:
         raise _singular(matrix, circuit, node_names, branch_of) from None
+    x = both[:, 0]
     if not np.all(np.isfinite(x)):
         raise _singular(matrix, circuit, node_names, branch_of)
     warnings = []
-    condition = _condition_estimate(matrix, lu)
+    condition = _condition_estimate(lu, scaling, both[:, 1])
     if not math.isfinite(condition) or condition > CONDITION_WARNING:
         digits = max(0, int(16 - math.log10(condition))) if math.isfinite(condition) else 0
         trust = (f"only about {digits} significant digits of the results can be trusted"
@@ -386,9 +394,21 @@ def _safe_inverse(values: np.ndarray) -> np.ndarray:
     return out
 
 
-def _condition_estimate(matrix, lu, iterations: int = 2) -> float:
+def _equilibration(matrix):
+    """Row and column scalings (r, c) to unit maximum magnitude, and the 1-norm of the
+    scaled matrix B = R·A·C."""
+    magnitude = abs(matrix).tocsr()
+    r = _safe_inverse(magnitude.max(axis=1).toarray().ravel())
+    scaled = magnitude.multiply(r[:, None]).tocsc()
+    c = _safe_inverse(scaled.max(axis=0).toarray().ravel())
+    norm = float((scaled.multiply(c[None, :])).sum(axis=0).max()) if matrix.shape[0] else 0.0
+    return r, c, norm
+
+
+def _condition_estimate(lu, scaling, first, iterations: int = 2) -> float:
     """1-norm condition estimate of the equilibrated matrix B = R·A·C (Hager's method,
-    as in LAPACK's xLACON), reusing the factors of A.
+    as in LAPACK's xLACON), reusing the factors of A; ``first`` is A⁻¹·(x₀/r) for the
+    starting vector x₀ = 1/n, solved together with the circuit's own right-hand side.
 
     MNA rows mix siemens with dimensionless constraint rows, so the raw matrix's
     condition says more about units than about accuracy; scaling rows and columns to
@@ -396,15 +416,12 @@ def _condition_estimate(matrix, lu, iterations: int = 2) -> float:
     pivots then keep the fill of a plain nodal matrix); B⁻¹ = C⁻¹·A⁻¹·R⁻¹ is applied
     through the same factors, so the estimate costs a few triangular solves.
     """
-    magnitude = abs(matrix).tocsr()
-    r = _safe_inverse(magnitude.max(axis=1).toarray().ravel())
-    c = _safe_inverse((sp.diags(r) @ magnitude).max(axis=0).toarray().ravel())
-    norm = (sp.diags(r) @ magnitude @ sp.diags(c)).sum(axis=0).max()
-    n = matrix.shape[0]
+    r, c, norm = scaling
+    n = len(r)
     x = np.full(n, 1.0 / n, dtype=complex)
     estimate = 0.0
     for step in range(iterations):
-        y = lu.solve(x / r) / c                       # B⁻¹·x
+        y = (first if step == 0 else lu.solve(x / r)) / c      # B⁻¹·x
         estimate = max(estimate, float(np.abs(y).sum()))
         if not math.isfinite(estimate):
             return math.inf
@@ -418,7 +435,7 @@ def _condition_estimate(matrix, lu, iterations: int = 2) -> float:
             break
         x = np.zeros(n, dtype=complex)
         x[j] = 1.0
-    return float(norm) * estimate
+    return norm * estimate
 
 
 def _singular(matrix, circuit, node_names, branch_of) -> AnalysisError:
