@@ -153,6 +153,8 @@ def _contract(solution: Solution) -> dict:
         "elements": out_elements,
         "balance": {"p_w": total.real, "q_var": total.imag, "relative": relative,
                     "tolerance": BALANCE_TOLERANCE, "ok": relative <= BALANCE_TOLERANCE},
+        # trusted significant digits of node voltages, for the nodes with fewer than 15
+        "node_digits": dict(solution.node_digits),
         "references": list(circuit.references),
         "condition_estimate": (solution.condition if solution.condition is not None and
                                math.isfinite(solution.condition) else None),

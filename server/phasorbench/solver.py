@@ -51,6 +51,8 @@ class Solution:
     #: Significant digits of each element's voltage and current that the extended-
     #: precision check trusts (0 to 15), in the order of ``names``.
     digits: np.ndarray | None = None
+    #: Trusted significant digits of the node voltages that have fewer than 15.
+    node_digits: dict[str, int] = field(default_factory=dict)
 
     def __repr__(self) -> str:
         return (f"Solution({len(self.names)} elements, {len(self.node_voltages)} nodes, "
@@ -238,10 +240,12 @@ def _solve(circuit: Circuit, tiny: frozenset = frozenset()) -> Solution:
             return _solve(circuit, frozenset(names[k] for k in nodal_rows[cancelling]))
 
     node_voltages = dict(zip(all_nodes, v_ext[unknown].astype(complex).tolist()))
+    node_digits = accuracy.digits(accuracy.relative_error(error[:n_nodes], x[:n_nodes]))
+    short = np.flatnonzero(node_digits < 15).tolist()
     return Solution(circuit, names, node_voltages, voltage.astype(complex),
                     current.astype(complex), secondary,
                     tuple(circuit.warnings) + tuple(warnings) + trust[1], condition,
-                    trust[0])
+                    trust[0], {node_names[k]: int(node_digits[k]) for k in short})
 
 
 #: An element whose voltage is this many times smaller than its nodes' voltages is

@@ -11,8 +11,9 @@ from __future__ import annotations
 
 import math
 
-from .formatting import (ELEMENT_COLUMNS, MISSING, NODE_COLUMNS, ROUND_OFF, element_rows, eng,
-                          node_rows, phasor, plain, power_factor, rect)
+from .formatting import (ELEMENT_COLUMNS, LIMITED, MISSING, NODE_COLUMNS, ROUND_OFF, SHOWN_DIGITS,
+                          element_rows, eng, node_rows, phasor, plain, power_factor, rect,
+                          shown_digits)
 
 #: Used only when a result carries no balance verdict of its own (results.py gives one):
 #: the residual may be this fraction of the summed |S| (double-precision round-off
@@ -83,12 +84,15 @@ def _source_row(name: str, el: dict) -> dict:
     """A source as its supplier sees it: power delivered is shown positive."""
     p, q = -_number(el.get("p_w")), -_number(el.get("q_var"))
     floor = 1e-12 * max(_number(el.get("s_va")), 1e-300)
+    d = shown_digits(el.get("digits"))      # never more digits than the solve trusts
+    mark = "" if d >= SHOWN_DIGITS else LIMITED
     return {"name": name, "kind": el.get("kind"),
             "values": {"p_w": p, "q_var": q, "s_va": el.get("s_va"), "pf": el.get("pf")},
             "text": {"name": name, "kind": el.get("kind", ""),
-                     "p": eng(p, "W", floor=floor), "q": eng(q, "var", floor=floor),
-                     "s": eng(el.get("s_va"), "VA"),
-                     "pf": power_factor(el.get("pf"), el.get("pf_sense"))}}
+                     "p": mark + eng(p, "W", d, floor=floor),
+                     "q": mark + eng(q, "var", d, floor=floor),
+                     "s": mark + eng(el.get("s_va"), "VA", d),
+                     "pf": mark + power_factor(el.get("pf"), el.get("pf_sense"), d)}}
 
 
 def power_summary(result: dict) -> dict:

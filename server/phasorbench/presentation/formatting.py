@@ -20,12 +20,15 @@ import math
 
 __all__ = [
     "ELEMENT_COLUMNS",
+    "LIMITED",
+    "SHOWN_DIGITS",
     "NODE_COLUMNS",
     "MISSING",
     "ROUND_OFF",
     "angle",
     "degrees",
     "element_rows",
+    "shown_digits",
     "eng",
     "node_rows",
     "phasor",
@@ -190,8 +193,10 @@ def _as_complex(ph) -> complex | None:
     return complex(ph)
 
 
-def phasor(ph, unit: str = "", digits: int = 4, floor: float | None = None) -> str:
-    """Polar form ``|X| unit ∠θ``; ``ph`` is a contract phasor dict or a complex.
+def phasor(ph, unit: str = "", digits: int = 4, floor: float | None = None,
+           angle_digits: int = 2) -> str:
+    """Polar form ``|X| unit ∠θ``; ``ph`` is a contract phasor dict or a complex;
+    ``angle_digits`` decimals of the angle.
 
     A magnitude shown as 0 (exactly 0, or below ``floor``) has no angle worth showing.
 
@@ -208,7 +213,7 @@ def phasor(ph, unit: str = "", digits: int = 4, floor: float | None = None) -> s
     text = eng(mag, unit, digits, floor)
     if mag == 0 or (floor is not None and mag < floor):
         return text
-    return f"{text} {angle(deg)}"
+    return f"{text} {angle(deg, angle_digits)}"
 
 
 def rect(ph, unit: str = "", digits: int = 4, floor: float | None = None) -> str:
@@ -284,6 +289,30 @@ def _phasor_values(ph, prefix: str) -> dict:
             f"{prefix}_re": z.real, f"{prefix}_im": z.imag}
 
 
+#: Significant digits shown in the tables when the solve trusts at least that many.
+SHOWN_DIGITS = 4
+#: Put before a value shown with fewer digits than usual because only those are trusted.
+LIMITED = "≈"
+
+
+def shown_digits(trusted) -> int:
+    """Digits to show for a value whose solve trusts ``trusted`` significant digits:
+    never more than the check allows, never fewer than one."""
+    if _is_missing(trusted):
+        return SHOWN_DIGITS
+    return max(1, min(SHOWN_DIGITS, int(trusted)))
+
+
+def _angle_decimals(digits: int) -> int:
+    """Decimals of an angle whose phasor is right to ``digits`` significant digits: a
+    relative error of 10⁻ᵈ moves the angle by up to about 57·10⁻ᵈ degrees."""
+    return max(0, min(2, digits - 2))
+
+
+def _limited(text: str, digits: int) -> str:
+    return text if digits >= SHOWN_DIGITS or text == MISSING else LIMITED + text
+
+
 def element_rows(result: dict) -> list[dict]:
     """One row per element of a contract dict, in the circuit's order.
 
@@ -292,7 +321,9 @@ def element_rows(result: dict) -> list[dict]:
     (``v_mag``, ``v_deg``, ``v_re``, ``v_im``, the same for ``i_`` and ``z_``, ``p_w``,
     ``q_var``, ``s_va``, ``pf``; None where absent) for sorting; ``text`` holds
     the display string of every column of `ELEMENT_COLUMNS`. Powers below 1e-12 of the
-    circuit's largest |S| show as 0, likewise voltages and currents.
+    circuit's largest |S| show as 0, likewise voltages and currents. An element whose
+    solve trusts fewer than `SHOWN_DIGITS` significant digits (its ``digits`` field) shows
+    only those, marked with `LIMITED`; ``values["digits"]`` holds the count.
     """
     elements = result.get("elements", {})
     s_floor = _floor([e.get("s_va") for e in elements.values()])
@@ -306,39 +337,45 @@ def element_rows(result: dict) -> list[dict]:
             values.update(_phasor_values(el.get(key), prefix))
         for key in ("p_w", "q_var", "s_va", "pf"):
             values[key] = el.get(key)
+        d = shown_digits(el.get("digits"))
+        values["digits"] = el.get("digits")
+
+        def cut(text: str) -> str:
+            return _limited(text, d)
+
         text = {
             "name": name,
             "kind": el.get("kind", ""),
             "terminals": f"{el.get('from', '?')} → {el.get('to', '?')}",
-            "voltage": phasor(el.get("voltage"), "V", floor=v_floor),
-            "current": phasor(el.get("current"), "A", floor=i_floor),
+            "voltage": cut(phasor(el.get("voltage"), "V", d, v_floor, _angle_decimals(d))),
+            "current": cut(phasor(el.get("current"), "A", d, i_floor, _angle_decimals(d))),
             "impedance_rect": rect(el.get("impedance"), "Ω"),
             "impedance_polar": phasor(el.get("impedance"), "Ω"),
-            "p": eng(el.get("p_w"), "W", floor=s_floor),
-            "q": eng(el.get("q_var"), "var", floor=s_floor),
-            "s": eng(el.get("s_va"), "VA", floor=s_floor),
-            "pf": _pf_text(el, s_floor),
+            "p": cut(eng(el.get("p_w"), "W", d, floor=s_floor)),
+            "q": cut(eng(el.get("q_var"), "var", d, floor=s_floor)),
+            "s": cut(eng(el.get("s_va"), "VA", d, floor=s_floor)),
+            "pf": cut(_pf_text(el, s_floor, d)),
         }
         secondary = None
         if isinstance(el.get("secondary"), dict):
             sec = el["secondary"]
-            secondary = {"voltage": phasor(sec.get("voltage"), "V", floor=v_floor),
-                         "current": phasor(sec.get("current"), "A", floor=i_floor)}
+            secondary = {"voltage": cut(phasor(sec.get("voltage"), "V", d, v_floor, _angle_decimals(d))),
+                         "current": cut(phasor(sec.get("current"), "A", d, i_floor, _angle_decimals(d)))}
         rows.append({"name": name, "kind": el.get("kind"), "from": el.get("from"),
                      "to": el.get("to"), "values": values, "text": text, "secondary": secondary})
     return rows
 
 
-def _pf_text(el: dict, s_floor: float) -> str:
+def _pf_text(el: dict, s_floor: float, digits: int = SHOWN_DIGITS) -> str:
     """PF with round-off removed: no power at all reads as the contract's zero case."""
     s, p, q = el.get("s_va"), el.get("p_w"), el.get("q_var")
     if _is_missing(s) or _is_missing(p):
-        return power_factor(el.get("pf"), el.get("pf_sense"))
+        return power_factor(el.get("pf"), el.get("pf_sense"), digits)
     if abs(s) < s_floor or s == 0:
         return power_factor(1.0, "unity")  # the contract's convention for |S| = 0
     pf = 0.0 if abs(p) < s_floor else el.get("pf", abs(p) / s)
     sense = "unity" if (not _is_missing(q) and abs(q) < s_floor) else el.get("pf_sense")
-    return power_factor(pf, sense)
+    return power_factor(pf, sense, digits)
 
 
 def node_rows(result: dict) -> list[dict]:
@@ -348,8 +385,14 @@ def node_rows(result: dict) -> list[dict]:
     node voltage show as 0.
     """
     nodes = result.get("nodes", {})
+    trusted = result.get("node_digits") or {}
     v_floor = _floor([_mag(n) for n in nodes.values()])
-    return [{"name": name, "values": _phasor_values(ph, "v"),
-             "text": {"name": name, "voltage": phasor(ph, "V", floor=v_floor),
-                      "rect": rect(ph, "V", floor=v_floor)}}
-            for name, ph in nodes.items()]
+    rows = []
+    for name, ph in nodes.items():
+        d = shown_digits(trusted.get(name))
+        rows.append({"name": name, "values": _phasor_values(ph, "v"),
+                     "text": {"name": name,
+                              "voltage": _limited(phasor(ph, "V", d, v_floor,
+                                                         _angle_decimals(d)), d),
+                              "rect": _limited(rect(ph, "V", d, floor=v_floor), d)}})
+    return rows

@@ -138,6 +138,11 @@ def _assumptions(result: dict) -> list[dict]:
     items.append(("Round-off",
                   f"A value below {fmt.plain(fmt.ROUND_OFF)} of the largest of its kind in "
                   "the circuit is round-off of the solve and is shown as 0."))
+    items.append(("Trusted digits",
+                  "Every solve is checked against the residual of each element's own "
+                  "equation in extended precision (about 19 digits). Values are shown with "
+                  f"{fmt.SHOWN_DIGITS} significant digits where the check trusts at least "
+                  f"that many; fewer digits, marked {fmt.LIMITED}, where it trusts fewer."))
     cond = result.get("condition_estimate")
     if cond is not None:
         items.append(("Numerical condition",
