@@ -47,6 +47,8 @@ class Element:
     sense_nodes: tuple[str, str] | None = None
     sense_element: str | None = None
     tolerance: float | None = None
+    #: How ``tolerance`` is drawn: "uniform" (within ±tol) or "normal" (σ = tol/3).
+    distribution: str | None = None
     frequency: float | None = None
     group: str | None = None
 
@@ -68,6 +70,8 @@ class Coupling:
     k: float | None = None
     m: float | None = None
     line: int | None = None
+    #: How the line gave it: "k" (M follows the inductors) or "M" (M is kept).
+    given: str = "k"
 
 
 @dataclass
@@ -97,6 +101,11 @@ class Circuit:
     couplings: dict[str, Coupling] = field(default_factory=dict)
     groups: dict[str, Group] = field(default_factory=dict)
     values: dict[str, complex] = field(default_factory=dict)
+    #: Named values with a ``tol``: name -> (fraction, "uniform" | "normal", line).
+    value_tolerances: dict[str, tuple[float, str, int]] = field(default_factory=dict)
+    #: Elements and couplings whose value uses each toleranced named value (directly
+    #: or through other named values), in order of appearance.
+    value_users: dict[str, tuple[str, ...]] = field(default_factory=dict)
     warnings: list = field(default_factory=list)      # Diagnostics found while reading
     #: Nodes held at 0 V besides ground: one per part with no conductive path to ground.
     references: tuple[str, ...] = ()

@@ -5,6 +5,7 @@
 - ``tools.py``: ``correct`` and ``port``.
 - ``sheet.py``: ``sheet``.
 - ``sweep.py``: ``sweep`` (frequency response).
+- ``tolerance.py``: ``tolerance`` (Monte Carlo, sensitivities, worst case, yield).
 - ``serve.py``: ``serve`` (the web server is imported only when it runs).
 
 Exit status: 0 solved (or valid), 2 the input is wrong (every error printed as
@@ -34,6 +35,7 @@ def build_parser() -> argparse.ArgumentParser:
     from .serve import add_serve_command
     from .sheet import add_sheet_command
     from .sweep import add_sweep_command
+    from .tolerance import add_tolerance_command
     from .tools import add_tool_commands
 
     parser = argparse.ArgumentParser(
@@ -42,7 +44,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"phasorbench {__version__}")
     commands = parser.add_subparsers(dest="command", metavar="COMMAND")
     for register in (add_circuit_commands, add_serve_command, add_sheet_command,
-                     add_tool_commands, add_sweep_command):
+                     add_tool_commands, add_sweep_command, add_tolerance_command):
         register(commands)
     return parser
 

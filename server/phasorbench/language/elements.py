@@ -31,7 +31,7 @@ OPTION_KINDS = {
     "peak": ("voltage", "current", "voltage3"),
     "freq": ("voltage", "current", "voltage3"),
     "sense": CONTROLLED_KINDS,
-    "tol": ("resistor", "inductor", "capacitor", "impedance"),
+    "tol": ("resistor", "inductor", "capacitor", "impedance", "admittance"),
     "line": ("voltage3",),
     "sequence": ("voltage3",),
 }
@@ -48,6 +48,39 @@ SIMPLE_ELEMENT = re.compile(
 
 def _canonical_node(text: str) -> str:
     return GROUND if text == "0" or text.lower() == "gnd" else text
+
+
+DISTRIBUTIONS = ("uniform", "normal")
+
+
+def read_tolerance(stream: TokenStream, line_text: str) -> tuple[float, str]:
+    """``PCT[%] [uniform | normal]`` after the word ``tol``: (fraction, distribution)."""
+    first = stream.peek()
+    if first is None or stream.at("%"):
+        raise stream.fail_here("tol needs a percentage", "e.g. tol 10%")
+    q = parse_value(stream, "percentage")      # a named value is a value here too
+    span = (first.start, stream.tokens[stream.pos - 1].end)
+    expect_unit(q, None, "tolerance", span, line_text[span[0]:span[1]])
+    if stream.at("%"):
+        stream.take()
+    if q.value.imag != 0 or not 0 <= q.value.real < 100:
+        raise LanguageError("a tolerance must be between 0 % and 100 %", "e.g. tol 5%",
+                            *span)
+    law = "uniform"
+    word = stream.peek()
+    if word is not None and word.kind == "word":
+        if word.text.lower() in DISTRIBUTIONS:
+            law = stream.take().text.lower()
+        else:
+            close = difflib.get_close_matches(word.text.lower(), DISTRIBUTIONS, n=1,
+                                              cutoff=0.6)
+            if close or word.text.lower() in ("gauss", "gaussian", "flat", "rect"):
+                meant = close[0] if close else ("normal" if word.text.lower()
+                                                .startswith("gauss") else "uniform")
+                raise LanguageError(f"'{word.text}' is not a distribution",
+                                    f"did you mean '{meant}'? (tol PCT uniform, or tol "
+                                    "PCT normal)", word.start, word.end)
+    return q.value.real / 100.0, law
 
 
 class ElementReader:
@@ -187,7 +220,8 @@ class ElementReader:
                                         "'sense ELEMENT'", "e.g. sense Rsense",
                                         *options["sense_span"])
                 element.sense_element = sense
-        element.tolerance = options.get("tol")
+        if "tol" in options:
+            element.tolerance, element.distribution = options["tol"]
         self.circuit.elements[name] = element
 
     def check_passive_value(self, kind: str, value: complex, span) -> None:
@@ -268,19 +302,8 @@ class ElementReader:
                 found[key] = stream.take().text.lower()
         return found
 
-    def tolerance(self, stream: TokenStream, option_token) -> float:
-        first = stream.peek()
-        if first is None or stream.at("%"):
-            raise stream.fail_here("tol needs a percentage", "e.g. tol 10%")
-        q = parse_value(stream, "percentage")      # a named value is a value here too
-        span = (first.start, stream.tokens[stream.pos - 1].end)
-        expect_unit(q, None, "tolerance", span, self.line.text[span[0]:span[1]])
-        if stream.at("%"):
-            stream.take()
-        if q.value.imag != 0 or not 0 <= q.value.real < 100:
-            raise LanguageError("a tolerance must be between 0 % and 100 %", "e.g. tol 5%",
-                                *span)
-        return q.value.real / 100.0
+    def tolerance(self, stream: TokenStream, option_token) -> tuple[float, str]:
+        return read_tolerance(stream, self.line.text)
 
     # -- other shapes ----------------------------------------------------------------
 
@@ -345,7 +368,8 @@ class ElementReader:
                     "inductance M", span, raw)
         self.circuit.couplings[name] = Coupling(
             name, (inductors[0], inductors[1]), k=q.value.real if by_k else None,
-            m=None if by_k else q.value.real, line=self.line.number)
+            m=None if by_k else q.value.real, line=self.line.number,
+            given="k" if by_k else "M")
 
     def three_phase(self, name: str, kind: str, stream: TokenStream) -> None:
         connection = "wye"

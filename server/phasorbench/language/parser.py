@@ -14,7 +14,7 @@ import re
 
 from ..errors import CircuitSyntaxError, Diagnostic, source_lines
 from ..model import Circuit
-from .elements import SIMPLE_ELEMENT, ElementReader
+from .elements import SIMPLE_ELEMENT, ElementReader, read_tolerance
 from .expressions import LanguageError, Quantity, TokenStream
 from .lexer import Token, tokenize
 from .suggest import NameIndex
@@ -65,6 +65,11 @@ class CircuitParser:
         self.unread_elements = 0
         #: Did-you-mean over the named values, built at the first miss.
         self.value_names: NameIndex | None = None
+        #: Named values with a ``tol``: name -> (fraction, distribution, line).
+        self.value_tolerances: dict[str, tuple[float, str, int]] = {}
+        #: The named values each named value or element line uses directly.
+        self.uses: dict[str, set[str]] = {}
+        self.recording: list[set[str]] = []
 
     # -- diagnostics ------------------------------------------------------------------
 
@@ -81,6 +86,8 @@ class CircuitParser:
 
     def lookup(self, token: Token) -> Quantity:
         name = token.text
+        if self.recording:
+            self.recording[-1].add(name)
         if name in self.values:
             return self.values[name]
         if name in self.failed_values:
@@ -105,9 +112,19 @@ class CircuitParser:
     def evaluate_assignment(self, name: str) -> Quantity:
         line = self.assignments[name]
         self.evaluating.append(name)
+        self.recording.append(self.uses.setdefault(name, set()))
         try:
             stream = TokenStream(line.tokens[2:], self.lookup, self.nesting)
             quantity = parse_value(stream, "value")
+            word = stream.peek()
+            if word is not None and word.kind == "word" and word.text.lower() == "tol":
+                stream.take()
+                self.recording.append(set())      # a tolerance's own value is no use
+                try:
+                    fraction, law = read_tolerance(stream, line.text)
+                finally:
+                    self.recording.pop()
+                self.value_tolerances[name] = (fraction, law, line.number)
             if stream.peek() is not None:
                 tok = stream.peek()
                 raise LanguageError(f"unexpected '{tok.text}' after the value",
@@ -123,6 +140,7 @@ class CircuitParser:
             raise
         finally:
             self.evaluating.pop()
+            self.recording.pop()
         self.values[name] = quantity
         return quantity
 
@@ -305,16 +323,54 @@ class CircuitParser:
                 line.tokenize()
                 line.kind = "element"
             if line.kind == "element":
+                self.recording.append(self.uses.setdefault(
+                    "\0" + line.tokens[0].text, set()))
                 try:
                     reader.read(line)
                 except LanguageError as exc:
                     self.language_error(line, exc)
                 except _Poisoned:
                     pass
+                finally:
+                    self.recording.pop()
         reader.finish()
         self.file_checks(circuit, reader)
         circuit.values = {k: q.value for k, q in self.values.items()}
+        circuit.value_tolerances = {k: v for k, v in self.value_tolerances.items()
+                                    if v[0] > 0}
+        circuit.value_users = self.users_of(circuit, circuit.value_tolerances)
         return circuit, self.diagnostics
+
+    def users_of(self, circuit: Circuit, names) -> dict[str, tuple[str, ...]]:
+        """The elements and couplings whose value uses each of ``names``, through any
+        chain of named values (element lines are keyed "\\0NAME" in ``uses``)."""
+        if not names:
+            return {}
+        reach: dict[str, set[str]] = {}
+
+        def closure(key: str, seen: set[str]) -> set[str]:
+            if key in reach:
+                return reach[key]
+            out: set[str] = set()
+            for used in self.uses.get(key, ()):
+                if used not in seen:
+                    out |= {used} | closure(used, seen | {used})
+            reach[key] = out
+            return out
+        found: dict[str, list[str]] = {name: [] for name in names}
+        for key in self.uses:
+            if not key.startswith("\0"):
+                continue
+            line_name = key[1:]
+            used = closure(key, set()) & set(names)
+            if not used:
+                continue
+            group = circuit.groups.get(line_name)
+            members = group.elements if group is not None else (line_name,)
+            for name in used:
+                found[name].extend(m for m in members
+                                   if m in circuit.elements or m in circuit.couplings)
+        return {name: tuple(users) for name, users in found.items()}
 
     def empty(self) -> Circuit:
         return Circuit(title=self.title, frequency=self.frequency or 0.0,

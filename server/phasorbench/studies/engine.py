@@ -53,7 +53,9 @@ def _unknown(system: dict, node: str) -> int:
 
 
 def _simple_value(part, x: np.ndarray, system: dict, circuit: Circuit, omega: float,
-                  test: dict) -> complex:
+                  test: dict, values: dict | None = None) -> complex:
+    """One simple probe from the unknowns ``x`` (a vector, or one row per unknown and a
+    column per run); ``values`` overrides element values (arrays over runs)."""
     def v(node):
         k = _unknown(system, node)
         return x[k] if k >= 0 else 0j
@@ -65,24 +67,25 @@ def _simple_value(part, x: np.ndarray, system: dict, circuit: Circuit, omega: fl
         k_b = _unknown(system, part.b.node if part.b else GROUND)
         return (xz[k_a] if k_a >= 0 else 0j) - (xz[k_b] if k_b >= 0 else 0j)
     e = circuit.elements[part.element.name]
+    value = e.value if values is None else values.get(e.name, e.value)
     branch = system["branch_of"].get(e.name)
     if branch is not None:
         return x[branch]
     if e.kind in PASSIVE_KINDS:
         if e.kind in ("resistor", "impedance"):
-            y = 1 / e.value
+            y = 1 / value
         elif e.kind == "capacitor":
-            y = 1j * omega * e.value
+            y = 1j * omega * value
         elif e.kind == "inductor":
-            y = 1 / (1j * omega * e.value)
+            y = 1 / (1j * omega * value)
         else:
-            y = e.value
+            y = value
         return y * (v(e.nodes[0]) - v(e.nodes[1]))
     if e.kind == "current":
-        return e.value
+        return value
     if e.kind == "vccs":
-        return e.value * (v(e.sense_nodes[0]) - v(e.sense_nodes[1]))
-    return e.value * x[system["branch_of"][e.sense_element]]      # cccs
+        return value * (v(e.sense_nodes[0]) - v(e.sense_nodes[1]))
+    return value * x[system["branch_of"][e.sense_element]]      # cccs
 
 
 def _right_hand_sides(system: dict, probes: list[Probe]):

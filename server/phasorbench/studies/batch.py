@@ -1,0 +1,335 @@
+"""Many runs of one circuit with moving part values: the MNA pattern built once by the
+solver's own assembly, each run's matrix the nominal one plus the moving parts' stamps
+(studies.md, "Tolerance"). Small systems are solved as stacked dense matrices, large
+ones sparse per run over the one shared pattern (SuperLU). Probes are read by the
+sweep's probe evaluator (``engine._simple_value``) over all runs at once.
+
+Sensitivities come from the adjoint system: for a probe X = cᵀx with A x = b,
+dX/dq = −λᵀ(∂A/∂q x − ∂b/∂q) + ∂X/∂q|explicit where Aᵀλ = c: one transposed solve per
+probe part, whatever the number of quantities.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.linalg import splu
+
+from ..model import GROUND, Circuit
+from ..solver import assemble
+from .engine import CHUNK_BYTES, DENSE_LIMIT, _right_hand_sides, _simple_value, \
+    _unknown, _well_posed
+from .parameters import Quantities, element_values, value_derivatives
+from .probes import Current, Impedance, Probe, Voltage
+
+#: g(v) of each stamp law and its derivative g'(v); ``jw`` is ω, filled per circuit.
+_LAWS = ("inv", "jw", "invjw", "id")
+
+
+@dataclass
+class Values:
+    """Probe values of a batch of runs; ``bad`` marks singular runs or zero denominators."""
+
+    values: dict[str, np.ndarray]
+    bad: np.ndarray
+
+
+class Batch:
+    """One circuit, its moving parts' stamps, and solves of any number of runs."""
+
+    def __init__(self, circuit: Circuit, q: Quantities, probes: list[Probe],
+                 frequency: float):
+        self.circuit, self.q, self.probes = circuit, q, probes
+        self.omega = 2 * math.pi * frequency
+        system = assemble(circuit, frequency)
+        self.system = system
+        self.size = system["size"]
+        self.keys, b = _right_hand_sides(system, probes)
+        self.B0 = np.asarray(b, dtype=complex)
+        self.A0 = sp.csc_matrix(system["matrix"], dtype=complex)
+        self.entities = list(q.elements) + list(q.couplings)
+        self._stamps()
+        nominal = element_values(q, np.ones((1, len(q.params))))
+        self.v0 = np.array([nominal[name][0] for name in self.entities], dtype=complex)
+        self.g0 = self._g(self.v0[None, :])[0]
+        self.dense = self.size <= DENSE_LIMIT
+        self._sparse_pattern()
+
+    # -- the moving stamps --------------------------------------------------------------
+
+    def _stamps(self) -> None:
+        system, circuit = self.system, self.circuit
+        branch_of = system["branch_of"]
+        rows, cols, signs, owner = [], [], [], []
+        rhs_rows, rhs_signs, rhs_owner = [], [], []
+        laws = []
+
+        def entry(r, c, sign, j):
+            if r >= 0 and c >= 0:
+                rows.append(r), cols.append(c), signs.append(sign), owner.append(j)
+
+        def rhs(r, sign, j):
+            if r >= 0:
+                rhs_rows.append(r), rhs_signs.append(sign), rhs_owner.append(j)
+        for j, name in enumerate(self.entities):
+            if name in circuit.couplings:
+                a, c = (branch_of[n] for n in circuit.couplings[name].inductors)
+                entry(a, c, -1.0, j), entry(c, a, -1.0, j)
+                laws.append("jw")
+                continue
+            e = circuit.elements[name]
+            p, n = _unknown(system, e.nodes[0]), _unknown(system, e.nodes[1])
+            col = branch_of.get(name)
+            if e.kind in ("voltage", "current"):
+                laws.append("id")
+                if col is not None:
+                    rhs(col, 1.0, j)
+                else:
+                    rhs(p, -1.0, j), rhs(n, 1.0, j)
+                continue
+            if col is None:
+                law = {"resistor": "inv", "impedance": "inv", "capacitor": "jw",
+                       "inductor": "invjw", "admittance": "id"}[e.kind]
+                entry(p, p, 1.0, j), entry(n, n, 1.0, j)
+                entry(p, n, -1.0, j), entry(n, p, -1.0, j)
+            elif e.kind == "admittance":
+                law = "id"
+                entry(col, p, -1.0, j), entry(col, n, 1.0, j)
+            else:
+                law = {"resistor": "id", "impedance": "id", "capacitor": "invjw",
+                       "inductor": "jw"}[e.kind]
+                entry(col, col, -1.0, j)
+            laws.append(law)
+        self.laws = np.array([_LAWS.index(law) for law in laws], dtype=np.int8)
+        self.rows, self.cols = np.array(rows, dtype=np.int64), np.array(cols, dtype=np.int64)
+        self.signs, self.owner = np.array(signs), np.array(owner, dtype=np.int64)
+        self.rhs_rows = np.array(rhs_rows, dtype=np.int64)
+        self.rhs_signs, self.rhs_owner = np.array(rhs_signs), np.array(rhs_owner,
+                                                                       dtype=np.int64)
+
+    def _g(self, v: np.ndarray) -> np.ndarray:
+        """The stamped quantity g(v) of every entity (columns) for every run (rows)."""
+        w = self.omega
+        out = np.empty_like(v)
+        with np.errstate(all="ignore"):
+            for code, fn in enumerate((lambda x: 1 / x, lambda x: 1j * w * x,
+                                       lambda x: 1 / (1j * w * x), lambda x: x)):
+                cols = self.laws == code
+                out[:, cols] = fn(v[:, cols])
+        return out
+
+    def _dg(self, v: np.ndarray) -> np.ndarray:
+        """g'(v) per entity (a vector of entity values)."""
+        w = self.omega
+        out = np.empty_like(v)
+        for code, fn in enumerate((lambda x: -1 / x ** 2, lambda x: 1j * w + 0 * x,
+                                   lambda x: -1 / (1j * w * x ** 2), lambda x: 1 + 0 * x)):
+            cols = self.laws == code
+            out[cols] = fn(v[cols])
+        return out
+
+    def _sparse_pattern(self) -> None:
+        """The nominal matrix with explicit room for every moving entry, and where each
+        moving entry sits in its data."""
+        size = self.size
+        a0 = self.A0.tocoo()
+        zeros = np.zeros(len(self.rows), dtype=complex)
+        pattern = sp.coo_matrix((np.concatenate([a0.data, zeros]),
+                                 (np.concatenate([a0.row, self.rows]),
+                                  np.concatenate([a0.col, self.cols]))),
+                                shape=(size, size)).tocsc()
+        pattern.sum_duplicates()
+        pattern.sort_indices()
+        self.pattern = pattern
+        column_of = np.repeat(np.arange(size), np.diff(pattern.indptr))
+        keys = column_of * size + pattern.indices
+        self.position = np.searchsorted(keys, self.cols * size + self.rows)
+        # sparse map from entity changes to data changes, and to flat dense positions
+        self.to_data = sp.csr_matrix((self.signs, (self.owner, self.position)),
+                                     shape=(len(self.entities), len(pattern.data)))
+        flat = self.rows * size + self.cols
+        self.flat, where = np.unique(flat, return_inverse=True)
+        self.to_flat = sp.csr_matrix((self.signs, (self.owner, where)),
+                                     shape=(len(self.entities), len(self.flat)))
+        self.to_rhs = sp.csr_matrix((self.rhs_signs, (self.rhs_owner, self.rhs_rows)),
+                                    shape=(len(self.entities), size))
+
+    # -- many runs ----------------------------------------------------------------------
+
+    def run(self, scales: np.ndarray) -> Values:
+        """The probes for every row of ``scales`` (rows: runs; columns: quantities)."""
+        values = element_values(self.q, scales)
+        v = np.stack([values[name] for name in self.entities], axis=1) \
+            if self.entities else np.zeros((len(scales), 0), complex)
+        dg = self._g(v) - self.g0
+        dv = v - self.v0
+        runs = len(scales)
+        x = np.full((runs, self.size, self.B0.shape[1]), np.nan + 0j)
+        if self.dense:
+            step = max(1, CHUNK_BYTES // max(1, 16 * self.size * self.size))
+            for start in range(0, runs, step):
+                block = slice(start, min(start + step, runs))
+                x[block] = self._dense(dg[block], dv[block])
+        else:
+            for k in range(runs):
+                x[k] = self._sparse(dg[k], dv[k])
+        return self._read(x, values)
+
+    def _rhs(self, dv: np.ndarray) -> np.ndarray:
+        b = np.broadcast_to(self.B0, (len(dv),) + self.B0.shape).copy()
+        if self.to_rhs.nnz:
+            b[:, :, 0] += (self.to_rhs.T @ dv.T).T
+        return b
+
+    def _dense(self, dg: np.ndarray, dv: np.ndarray) -> np.ndarray:
+        n, runs = self.size, len(dg)
+        stack = np.broadcast_to(self.A0.toarray(), (runs, n, n)).copy()
+        flat = stack.reshape(runs, n * n)
+        if len(self.flat):
+            flat[:, self.flat] += (self.to_flat.T @ dg.T).T
+        b = self._rhs(dv)
+        with np.errstate(all="ignore"):
+            try:
+                x = np.linalg.solve(stack, b)
+                if np.all(np.isfinite(x)) and _well_posed(stack, x, b):
+                    return x
+            except np.linalg.LinAlgError:
+                pass
+        return np.stack([self._solve_one(stack[k], b[k]) for k in range(runs)])
+
+    def _matrix(self, dg: np.ndarray) -> sp.csc_matrix:
+        data = self.pattern.data + self.to_data.T @ dg
+        return sp.csc_matrix((data, self.pattern.indices, self.pattern.indptr),
+                             shape=self.pattern.shape)
+
+    def _sparse(self, dg: np.ndarray, dv: np.ndarray) -> np.ndarray:
+        b = self._rhs(dv[None, :])[0]
+        return self._solve_one(self._matrix(dg), b)
+
+    def _solve_one(self, matrix, b) -> np.ndarray:
+        try:
+            with np.errstate(all="ignore"):
+                x = splu(sp.csc_matrix(matrix)).solve(b)
+        except RuntimeError:
+            return np.full(b.shape, np.nan + 0j)
+        return x if np.all(np.isfinite(x)) else np.full(b.shape, np.nan + 0j)
+
+    def _read(self, x: np.ndarray, values: dict) -> Values:
+        """Every probe over all runs, by the sweep's probe evaluator."""
+        runs = x.shape[0]
+        bad = ~np.all(np.isfinite(x), axis=(1, 2))
+        test = {key: x[:, :, j].T for j, key in enumerate(self.keys) if key is not None}
+        out = {}
+        with np.errstate(all="ignore"):
+            for probe in self.probes:
+                parts = [np.broadcast_to(_simple_value(part, x[:, :, 0].T, self.system,
+                                                       self.circuit, self.omega, test,
+                                                       values), (runs,))
+                         for part in probe.parts()]
+                value = parts[0] if len(parts) == 1 else parts[0] / parts[1]
+                if len(parts) == 2:
+                    bad = bad | (parts[1] == 0)
+                out[probe.text] = np.asarray(value, dtype=complex)
+        return Values(out, bad)
+
+    # -- sensitivities ----------------------------------------------------------------
+
+    def point(self, scales: np.ndarray | None = None):
+        """(probe values, d ln X / d ln q per probe) at ``scales`` (default nominal): the
+        adjoint system, one transposed solve per probe part."""
+        m = len(self.q.params)
+        at = np.ones(m) if scales is None else np.asarray(scales, dtype=float)
+        values = element_values(self.q, at[None, :])
+        v = np.array([values[name][0] for name in self.entities], dtype=complex)
+        dg = self._g(v[None, :])[0] - self.g0
+        matrix = self._matrix(dg)
+        b = self._rhs((v - self.v0)[None, :])[0]
+        lu = splu(sp.csc_matrix(matrix))
+        x = lu.solve(b)
+        derivative = value_derivatives(self.q, at)
+        dv = np.stack([derivative[name] for name in self.entities], axis=0) \
+            if self.entities else np.zeros((0, m), complex)        # entity × quantity
+        dgq = self._dg(v)[:, None] * dv
+        flat = {name: values[name][0] for name in self.entities}
+        result, sens = {}, {}
+        for probe in self.probes:
+            pieces = [self._part(part, x, lu, flat, dv, dgq) for part in probe.parts()]
+            if len(pieces) == 1:
+                value, dlog = pieces[0][0], pieces[0][1] / pieces[0][0]
+            else:
+                (n, dn), (d, dd) = pieces
+                value, dlog = n / d, dn / n - dd / d
+            result[probe.text] = value
+            sens[probe.text] = dlog
+        return result, sens
+
+    def _part(self, part, x, lu, values, dv, dgq):
+        """(value, dX/dln q for every q) of one simple probe."""
+        size = self.size
+        c = np.zeros(size, dtype=complex)
+        explicit = np.zeros(dv.shape[1], dtype=complex)
+        column = 0
+        system, circuit = self.system, self.circuit
+        if isinstance(part, (Voltage, Impedance)):
+            for node, sign in ((part.a.node, 1.0),
+                               (part.b.node if part.b else GROUND, -1.0)):
+                k = _unknown(system, node)
+                if k >= 0:
+                    c[k] += sign
+            if isinstance(part, Impedance):
+                column = self.keys.index((part.a.node, part.b.node if part.b else GROUND))
+        else:
+            e = circuit.elements[part.element.name]
+            j = self.entities.index(e.name) if e.name in values else None
+            col = system["branch_of"].get(e.name)
+            if col is not None:
+                c[col] = 1.0
+            elif e.kind in ("current",):
+                if j is not None:
+                    explicit += dv[j]
+            elif e.kind in ("vccs", "cccs"):
+                if e.kind == "vccs":
+                    for node, sign in zip(e.sense_nodes, (1.0, -1.0)):
+                        k = _unknown(system, node)
+                        if k >= 0:
+                            c[k] += sign * e.value
+                else:
+                    c[system["branch_of"][e.sense_element]] = e.value
+            else:
+                p, n = _unknown(system, e.nodes[0]), _unknown(system, e.nodes[1])
+                value = values.get(e.name, e.value)
+                y = _simple_value(part, _unit(size, p, n), system,
+                                  circuit, self.omega, {}, {e.name: value})
+                if p >= 0:
+                    c[p] += y
+                if n >= 0:
+                    c[n] -= y
+                if j is not None:
+                    explicit += dgq[j] * ((x[p, 0] if p >= 0 else 0) -
+                                          (x[n, 0] if n >= 0 else 0))
+        xj = x[:, column]
+        value = c @ xj + (values.get(part.element.name, 0) if isinstance(part, Current) and
+                          circuit.elements[part.element.name].kind == "current" and
+                          system["branch_of"].get(part.element.name) is None else 0)
+        lam = lu.solve(c, trans="T") if np.any(c) else np.zeros(size, complex)
+        t = np.zeros(len(self.entities), dtype=complex)
+        np.add.at(t, self.owner, self.signs * lam[self.rows] * xj[self.cols])
+        d = -(dgq.T @ t)
+        if column == 0 and len(self.rhs_rows):
+            r = np.zeros(len(self.entities), dtype=complex)
+            np.add.at(r, self.rhs_owner, self.rhs_signs * lam[self.rhs_rows])
+            d = d + dv.T @ r
+        return value, d + explicit
+
+
+def _unit(size, p, n):
+    """A unit voltage across p→n (what the probe evaluator turns into the admittance)."""
+    x = np.zeros(max(size, 1), dtype=complex)
+    if p >= 0:
+        x[p] = 1.0
+    else:
+        x[n] = -1.0
+    return x
