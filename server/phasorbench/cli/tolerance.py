@@ -45,8 +45,7 @@ def command_tolerance(args) -> int:
     try:
         if args.scheduler:
             from ..studies.cluster import cluster_chunks
-            chunks = cluster_chunks(circuit, args.probe, args.limit, args.seed,
-                                    args.scheduler)
+            chunks = cluster_chunks(circuit, args.probe, args.limit, args.scheduler)
         result = run_tolerance(circuit, args.probe, args.runs, args.seed, args.worst_case,
                                args.limit, chunks=chunks)
     except CircuitError as exc:

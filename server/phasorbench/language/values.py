@@ -17,7 +17,7 @@ from .expressions import (UNIT_NAMES, UNKNOWN_UNIT, LanguageError, Quantity, Tok
 
 #: Words that end a value: the options that may follow it.
 OPTION_WORDS = frozenset({"phase", "rms", "peak", "freq", "sense", "tol", "line",
-                          "sequence"})
+                          "sequence", "uniform", "normal"})
 
 
 def parse_value(stream: TokenStream, what: str = "value") -> Quantity:

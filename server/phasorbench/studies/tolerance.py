@@ -146,11 +146,12 @@ def prepare(circuit, probe_texts, runs=None, seed=None, limits=()):
 
 def monte_carlo(batch, runs, seed, progress=None, cancel=None, chunks=None):
     """Every run's probe values: ({probe: complex array}, bad mask). ``chunks`` (a
-    callable taking the chunk list) may run them elsewhere (a Dask cluster)."""
+    callable taking the seed and the [(chunk, runs)] list, answering each chunk's
+    (values, bad) in order) may run them elsewhere (a Dask cluster)."""
     total = chunk_count(runs)
     sizes = [min(CHUNK_RUNS, runs - k * CHUNK_RUNS) for k in range(total)]
     if chunks is not None:
-        pieces = chunks(list(enumerate(sizes)))
+        pieces = chunks(seed, list(enumerate(sizes)))
     else:
         pieces = []
         for k, size in enumerate(sizes):

@@ -19,7 +19,7 @@ from starlette.routing import Mount
 from starlette.staticfiles import StaticFiles
 
 from .. import __version__
-from . import api, pages, sheet_routes, study_routes
+from . import api, pages, sheet_routes, study_routes, tolerance_routes
 from .guards import HostOriginGuard
 from starlette.exceptions import HTTPException as StarletteHTTPException
 from .jsonsafe import StrictJSONResponse
@@ -50,6 +50,16 @@ def _routes(settings: Settings) -> list:
         post("/api/correct", api.correct, "Size the power-factor correction capacitor of a source"),
         post("/api/port", api.port, "Thevenin and Norton equivalents seen from two nodes"),
         post("/api/sweep", study_routes.sweep, "Frequency response of probes over a range"),
+        post("/api/tolerance", tolerance_routes.tolerance,
+             "Monte Carlo, sensitivities, worst case and yield over the tolerances"),
+        post("/api/tolerance/jobs", tolerance_routes.start_job,
+             "Start a tolerance study (the page's progress and cancel)"),
+        APIRoute("/api/tolerance/jobs/{job_id}", tolerance_routes.job_status,
+                 methods=["GET"], summary="Progress or answer of a tolerance study",
+                 response_class=StrictJSONResponse),
+        APIRoute("/api/tolerance/jobs/{job_id}", tolerance_routes.cancel_job,
+                 methods=["DELETE"], summary="Cancel a tolerance study",
+                 response_class=StrictJSONResponse),
         *sheet_routes.router.routes,          # POST /api/sheet: the solved sheet download
         APIRoute("/api/samples", api.samples, methods=["GET"], summary="List the sample circuits",
                  response_class=StrictJSONResponse),

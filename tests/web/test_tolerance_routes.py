@@ -1,0 +1,80 @@
+"""POST /api/tolerance and the job routes: the study's JSON, 422 in the language's error
+shape, the stated work bound, progress and cancel."""
+
+from __future__ import annotations
+
+import math
+import time
+
+from .test_tools_api import api  # noqa: F401  (the threaded client fixture)
+
+DIVIDER = """frequency 50 Hz
+V1: voltage in -> 0 10 V
+R1: resistor in -> out 1 kohm tol 2%
+R2: resistor out -> 0 1 kohm tol 2%
+"""
+
+
+def test_tolerance_answers_the_study_json(api):  # noqa: F811
+    r = api.post("/api/tolerance", json={"netlist": DIVIDER, "probes": ["V(out)"],
+                                         "runs": 1000, "worst_case": True,
+                                         "limits": ["V(out) 4.95..5.05"]})
+    assert r.status_code == 200
+    body = r.json()
+    probe = body["probes"]["V(out)"]
+    # divider (formula): 5 V nominal, ∂ln V/∂ln R1 = −1/2; worst max 10·1.02/(0.98+1.02)
+    assert math.isclose(probe["nominal"]["mag"], 5.0, rel_tol=1e-12)
+    assert math.isclose(probe["sensitivities"]["R1"]["mag"], -0.5, rel_tol=1e-9)
+    assert math.isclose(probe["worst_case"]["mag"]["max"]["value"], 10 * 1.02 / 2,
+                        rel_tol=1e-9)
+    assert body["seed"] == 1 and body["runs"] == 1000 and body["yield"]["runs"] == 1000
+
+
+def test_bad_input_answers_422_with_every_error(api):  # noqa: F811
+    r = api.post("/api/tolerance", json={"netlist": DIVIDER, "probes": ["V(ot)"],
+                                         "runs": 1, "limits": ["V(out) 3..2"]})
+    assert r.status_code == 422                      # studies.md: HTTP 422, all in one pass
+    errors = r.json()["errors"]
+    assert len(errors) == 3
+    probe = [e for e in errors if "'ot'" in e["message"]][0]
+    assert probe["column"] == 3 and "did you mean 'out'" in probe["hint"]
+
+
+def test_work_bound_is_stated(api):  # noqa: F811
+    big = "frequency 50 Hz\nVs: voltage n0 -> 0 1 V\n" + "".join(
+        f"R{k}: resistor n{k} -> n{k + 1} 1 ohm tol 1%\n" for k in range(60)) + \
+        "R99: resistor n60 -> 0 1 ohm\n"
+    r = api.post("/api/tolerance", json={"netlist": big, "probes": ["V(n5)"],
+                                         "runs": 1_000_000})
+    # common practice, no source: a bounded server says its limit
+    assert r.status_code == 422
+    assert "solves × unknowns" in r.json()["errors"][0]["message"]
+
+
+def test_job_progress_answer_and_cancel(api):  # noqa: F811
+    r = api.post("/api/tolerance/jobs", json={"netlist": DIVIDER, "probes": ["V(out)"],
+                                              "runs": 6000})
+    job = r.json()["job"]
+    for _ in range(200):
+        r = api.get(f"/api/tolerance/jobs/{job}")
+        if r.json().get("state") != "running":
+            break
+        time.sleep(0.05)
+    body = r.json()
+    # common practice, no source: the same answer as the one-shot route
+    assert body["state"] == "done" and body["runs"] == 6000
+    assert api.get(f"/api/tolerance/jobs/{job}").status_code == 404
+    slow = "frequency 50 Hz\nVs: voltage n0 -> 0 1 V\n" + "".join(
+        f"R{k}: resistor n{k} -> n{k + 1} 1 ohm tol 1%\n" for k in range(150)) + \
+        "R999: resistor n150 -> 0 1 ohm\n"
+    r = api.post("/api/tolerance/jobs", json={"netlist": slow, "probes": ["V(n5)"],
+                                              "runs": 200000})
+    job = r.json()["job"]
+    assert api.request("DELETE", f"/api/tolerance/jobs/{job}").json()["state"] == \
+        "cancelling"
+    for _ in range(400):
+        r = api.get(f"/api/tolerance/jobs/{job}")
+        if r.json().get("state") != "running":
+            break
+        time.sleep(0.05)
+    assert r.json()["state"] == "cancelled"
