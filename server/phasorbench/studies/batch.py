@@ -22,7 +22,7 @@ from ..model import GROUND, Circuit
 from ..solver import assemble
 from .engine import CHUNK_BYTES, DENSE_LIMIT, _right_hand_sides, _simple_value, \
     _unknown, _well_posed
-from .parameters import Quantities, element_values, value_derivatives
+from .parameters import Quantities, entities, value_derivatives, value_matrix
 from .probes import Current, Impedance, Probe, Voltage
 
 #: g(v) of each stamp law and its derivative g'(v); ``jw`` is ω, filled per circuit.
@@ -50,10 +50,13 @@ class Batch:
         self.keys, b = _right_hand_sides(system, probes)
         self.B0 = np.asarray(b, dtype=complex)
         self.A0 = sp.csc_matrix(system["matrix"], dtype=complex)
-        self.entities = list(q.elements) + list(q.couplings)
+        self.entities = entities(q)
         self._stamps()
-        nominal = element_values(q, np.ones((1, len(q.params))))
-        self.v0 = np.array([nominal[name][0] for name in self.entities], dtype=complex)
+        self.v0 = value_matrix(q, np.ones((1, len(q.params))))[0]
+        #: the moving elements a probe reads a value of (a current of a passive)
+        self.read = {part.element.name: self.entities.index(part.element.name)
+                     for p in probes for part in p.parts()
+                     if isinstance(part, Current) and part.element.name in self.entities}
         self.g0 = self._g(self.v0[None, :])[0]
         self.dense = self.size <= DENSE_LIMIT
         self._sparse_pattern()
@@ -161,9 +164,8 @@ class Batch:
 
     def run(self, scales: np.ndarray) -> Values:
         """The probes for every row of ``scales`` (rows: runs; columns: quantities)."""
-        values = element_values(self.q, scales)
-        v = np.stack([values[name] for name in self.entities], axis=1) \
-            if self.entities else np.zeros((len(scales), 0), complex)
+        v = value_matrix(self.q, scales)
+        values = {name: v[:, j] for name, j in self.read.items()}
         dg = self._g(v) - self.g0
         dv = v - self.v0
         runs = len(scales)
@@ -242,18 +244,15 @@ class Batch:
         adjoint system, one transposed solve per probe part."""
         m = len(self.q.params)
         at = np.ones(m) if scales is None else np.asarray(scales, dtype=float)
-        values = element_values(self.q, at[None, :])
-        v = np.array([values[name][0] for name in self.entities], dtype=complex)
+        v = value_matrix(self.q, at[None, :])[0]
         dg = self._g(v[None, :])[0] - self.g0
         matrix = self._matrix(dg)
         b = self._rhs((v - self.v0)[None, :])[0]
         lu = splu(sp.csc_matrix(matrix))
         x = lu.solve(b)
-        derivative = value_derivatives(self.q, at)
-        dv = np.stack([derivative[name] for name in self.entities], axis=0) \
-            if self.entities else np.zeros((0, m), complex)        # entity × quantity
+        dv = value_derivatives(self.q, at)                     # entity × quantity
         dgq = self._dg(v)[:, None] * dv
-        flat = {name: values[name][0] for name in self.entities}
+        flat = {name: v[j] for j, name in enumerate(self.entities)}
         result, sens = {}, {}
         for probe in self.probes:
             pieces = [self._part(part, x, lu, flat, dv, dgq) for part in probe.parts()]

@@ -118,54 +118,75 @@ def chunk_count(runs: int) -> int:
 
 def draw_scales(q: Quantities, seed: int, chunk: int, runs: int) -> np.ndarray:
     """The scale factors of chunk ``chunk`` (``runs`` rows, one column per quantity)."""
-    child = np.random.SeedSequence(seed).spawn(chunk + 1)[chunk]
-    u = np.random.default_rng(child).random((runs, len(q.params)))
-    scales = np.empty_like(u)
-    for k, p in enumerate(q.params):
-        if p.law == "normal":
-            scales[:, k] = 1 + p.fraction / 3 * ndtri(np.clip(u[:, k], _TINY, 1 - _TINY))
-        else:
-            scales[:, k] = 1 + p.fraction * (2 * u[:, k] - 1)
+    child = np.random.SeedSequence(seed, spawn_key=(chunk,))   # = SeedSequence(seed)
+    u = np.random.default_rng(child).random((runs, len(q.params)))  # .spawn(…)[chunk]
+    fraction = np.array([p.fraction for p in q.params])
+    normal = np.array([p.law == "normal" for p in q.params], dtype=bool)
+    scales = 1 + fraction * (2 * u - 1)
+    if normal.any():
+        z = ndtri(np.clip(u[:, normal], _TINY, 1 - _TINY))
+        scales[:, normal] = 1 + fraction[normal] / 3 * z
     return scales
 
 
-def element_values(q: Quantities, scales: np.ndarray) -> dict[str, np.ndarray]:
-    """Every moving element's value and every moving coupling's M, per row of
-    ``scales`` (rows: draws; columns: ``q.params``)."""
+def entities(q: Quantities) -> list[str]:
+    """The moving elements, then the moving couplings: the columns of ``value_matrix``."""
+    return list(q.elements) + list(q.couplings)
+
+
+def value_matrix(q: Quantities, scales: np.ndarray) -> np.ndarray:
+    """Every moving element's value and every moving coupling's M (columns, in
+    ``entities`` order) for every row of ``scales`` (rows: draws; columns: quantities)."""
     circuit = q.circuit
     rows = scales.shape[0]
+    plan = q.__dict__.get("_plan")
+    if plan is None:
+        names = q.elements
+        nominal = np.array([circuit.elements[n].value for n in names], dtype=complex)
+        own = [(j, q.index[n]) for j, n in enumerate(names)
+               if n in q.index and q.params[q.index[n]].source == "element"]
+        plan = q.__dict__["_plan"] = (nominal, np.array([j for j, _ in own], dtype=int),
+                                      np.array([k for _, k in own], dtype=int),
+                                      {n: j for j, n in enumerate(names)})
+    nominal, own_cols, own_params, column = plan
+    out = np.empty((rows, len(q.elements) + len(q.couplings)), dtype=complex)
+    out[:, :len(nominal)] = nominal
     named = {}
     if q.revaluer is not None:
         named = q.revaluer.arrays({p.name: scales[:, k] for k, p in enumerate(q.params)
                                    if p.source == "value"})
-    out = {}
-    for name in q.elements:
-        value = named.get(name)
-        if value is None:
-            value = np.full(rows, circuit.elements[name].value, dtype=complex)
-        k = q.index.get(name)
-        if k is not None and q.params[k].source == "element":
-            value = value * scales[:, k]
-        out[name] = value
-    for name in q.couplings:
+        for name, value in named.items():
+            if name in column:
+                out[:, column[name]] = value
+    if len(own_cols):
+        out[:, own_cols] *= scales[:, own_params]
+    for offset, name in enumerate(q.couplings):
         c = circuit.couplings[name]
         own = named.get(name)
+        j = len(nominal) + offset
         if c.given == "M":
-            out[name] = own if own is not None else np.full(rows, complex(c.m))
+            out[:, j] = own if own is not None else complex(c.m)
             continue
-        k = own.real if own is not None else np.full(rows, c.k)
-        l1, l2 = (out[n].real if n in out else np.full(rows, circuit.elements[n].value.real)
-                  for n in c.inductors)
-        out[name] = (k * np.sqrt(l1) * np.sqrt(l2)).astype(complex)
+        k = own.real if own is not None else c.k
+        l1, l2 = (out[:, column[n]].real if n in column else
+                  circuit.elements[n].value.real for n in c.inductors)
+        out[:, j] = k * np.sqrt(l1) * np.sqrt(l2)
     return out
+
+
+def element_values(q: Quantities, scales: np.ndarray) -> dict[str, np.ndarray]:
+    """``value_matrix`` as one array per element or coupling name."""
+    matrix = value_matrix(q, scales)
+    return {name: matrix[:, j] for j, name in enumerate(entities(q))}
 
 
 #: Step in ln(scale) of the central difference that gives dv/dln q (error ~ step²).
 _STEP = 1e-5
 
 
-def value_derivatives(q: Quantities, at: np.ndarray | None = None) -> dict[str, np.ndarray]:
-    """d value / d ln(scale) of every moving element and coupling, one entry per quantity,
+def value_derivatives(q: Quantities, at: np.ndarray | None = None) -> np.ndarray:
+    """d value / d ln(scale) of every moving element and coupling (rows, ``entities``
+    order) to every quantity (columns),
     at the scales ``at`` (default: nominal), by a central difference in ln(scale)."""
     m = len(q.params)
     base = np.ones(m) if at is None else np.asarray(at, dtype=float)
@@ -173,5 +194,5 @@ def value_derivatives(q: Quantities, at: np.ndarray | None = None) -> dict[str, 
     for k in range(m):
         scales[2 * k, k] *= math.exp(_STEP)
         scales[2 * k + 1, k] *= math.exp(-_STEP)
-    values = element_values(q, scales)
-    return {name: (v[0::2] - v[1::2]) / (2 * _STEP) for name, v in values.items()}
+    values = value_matrix(q, scales)
+    return (values[0::2] - values[1::2]).T / (2 * _STEP)        # entity × quantity
