@@ -40,6 +40,26 @@ export const postThreePhase = (netlist, group, size, signal) =>
 export const postCorrect = (netlist, ask, signal) => postJSON("/api/correct", {netlist, ...ask}, signal);
 export const postPort = (netlist, a, b, signal) => postJSON("/api/port", {netlist, a, b}, signal);
 
+/** The tolerance study as a job: start it, poll it, cancel it (see /docs). */
+export const startToleranceJob = (netlist, ask) =>
+  postJSON("/api/tolerance/jobs", {netlist, ...ask, display: true});
+export async function getToleranceJob(job) {
+  try {
+    const response = await fetch(`/api/tolerance/jobs/${encodeURIComponent(job)}`,
+                                 {headers: {"Accept": "application/json"}});
+    return {ok: response.ok, status: response.status, data: await response.json()};
+  } catch {
+    return {ok: false, status: 0, data: NO_ANSWER};
+  }
+}
+export async function cancelToleranceJob(job) {
+  try {
+    await fetch(`/api/tolerance/jobs/${encodeURIComponent(job)}`, {method: "DELETE"});
+  } catch {
+    // the poll says what happened
+  }
+}
+
 export async function getSamples() {
   try {
     const response = await fetch("/api/samples", {headers: {"Accept": "application/json"}});

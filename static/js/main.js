@@ -13,6 +13,7 @@ import {loadSaved, save} from "./store.js";
 import {renderFacts, renderSummary} from "./summary.js";
 import {markSelected, renderBranchTable, renderNodeTable} from "./tables.js";
 import {createThreePhase} from "./threephase.js";
+import {createTolerance} from "./tolerance.js";
 import {createTabs, savedTool} from "./tools.js";
 import {clearViews, renderPicker, showPhasors, showWaveform} from "./views.js";
 
@@ -386,6 +387,7 @@ function setupTools() {
     threePhase,
     correction: createCorrection({getSolved: solvedText, onAppend: appendLines}),
     port: createPort({getSolved: solvedText}),
+    tolerance: createTolerance({getSolved: solvedText}),
     tabs: createTabs($("tool-tabs"), {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),
@@ -411,6 +413,7 @@ async function exportCurrentSheet() {
     const result = await exportSheet(text, names, {
       correct: tools.correction.sheetRequest(text),
       port: tools.port.sheetRequest(text),
+      tolerance: tools.tolerance.sheetRequest(text),
     });
     if (!result.ok) {
       const data = result.data || {};

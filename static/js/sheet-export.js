@@ -50,6 +50,7 @@ export async function exportSheet(netlist, elements, tools = {}) {
   if (Array.isArray(elements) && elements.length) body.elements = elements;
   if (tools.correct) body.correct = tools.correct;
   if (tools.port) body.port = tools.port;
+  if (tools.tolerance) body.tolerance = tools.tolerance;
   let response;
   try {
     response = await fetch("/api/sheet", {

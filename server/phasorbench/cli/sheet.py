@@ -12,6 +12,7 @@ import os
 import sys
 import tempfile
 
+from ..errors import CircuitError
 from .common import EXIT_INPUT, EXIT_OK, load_source, print_warnings
 
 
@@ -37,6 +38,15 @@ def add_sheet_command(commands) -> None:
                             "the other placements)")
     sheet.add_argument("--port", nargs=2, metavar=("A", "B"),
                        help="add the Thevenin and Norton equivalents seen from nodes A and B")
+    sheet.add_argument("--tolerance", action="append", metavar="P", dest="tol_probes",
+                       help="add a tolerance study of probe P (repeatable; the study of "
+                            "phasorbench tolerance)")
+    sheet.add_argument("--tolerance-limit", action="append", metavar='"P MIN..MAX"',
+                       dest="tol_limits", help="a limit of the tolerance study (repeatable)")
+    sheet.add_argument("--runs", type=int, metavar="N", help="runs of the tolerance study")
+    sheet.add_argument("--seed", type=int, metavar="S", help="seed of the tolerance study")
+    sheet.add_argument("--worst-case", action="store_true",
+                       help="add the worst case to the tolerance study")
     sheet.set_defaults(run=command_sheet)
 
 
@@ -60,15 +70,27 @@ def _write(path: str, html: str) -> None:
 def command_sheet(args) -> int:
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
+    from ..sheet.tolerance import tolerance_section
     from ..workflow import solve_text
     text, name = load_source(args)
     result = solve_text(text, name)
     correct = ({"source": args.correct[0], "target": args.correct[1]} if args.correct
                else None)
     tools = run_power_tools(text, name, correct=correct, port=args.port)
+    ask = None
+    if args.tol_probes or args.tol_limits:
+        ask = {"probes": args.tol_probes or [], "limits": args.tol_limits or [],
+               "runs": args.runs, "seed": args.seed, "worst_case": args.worst_case}
+    try:
+        tolerance = tolerance_section(text, name, ask)
+    except CircuitError as exc:
+        from .tolerance import print_study_diagnostics
+        print_study_diagnostics(exc.diagnostics, name, text)
+        return EXIT_INPUT
     html = render_context(sheet_context(text, name, result=result,
                                         waveform_elements=args.elements,
-                                        phasor_elements=args.elements, **tools))
+                                        phasor_elements=args.elements, **tools,
+                                        tolerance=tolerance))
     if args.output == "-":
         sys.stdout.write(html)
         sys.stdout.flush()

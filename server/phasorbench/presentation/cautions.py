@@ -10,7 +10,7 @@ between editions, which is why the text asks the reader to check the edition in 
 
 from __future__ import annotations
 
-__all__ = ["CAUTIONS", "SCOPE_NOTE", "cautions_text"]
+__all__ = ["CAUTIONS", "SCOPE_NOTE", "TOLERANCE_NOTE", "cautions_text"]
 
 #: One sentence for the foot of every result: what the numbers are and are not.
 SCOPE_NOTE = (
@@ -18,6 +18,15 @@ SCOPE_NOTE = (
     "They are not a protection, short-circuit or arc-flash study, and they say nothing "
     "about switching transients. Local electrical codes and a licensed engineer or "
     "electrician decide what is safe for a real installation."
+)
+
+#: Under every tolerance study (page and sheet): what the spread does not cover.
+TOLERANCE_NOTE = (
+    "The spread is that of the stated tolerances only, drawn independently per part "
+    "(a named value once per run). Parts also drift with age and temperature (capacitor "
+    "banks lose capacitance, so a detuned bank's tuning moves), and a worst case near a "
+    "resonance can overload a bank or its reactor: check the ratings at the worst case, "
+    "and let local codes and licensed practice decide for a real installation."
 )
 
 #: (title, text) pairs, most dangerous first.

@@ -205,7 +205,8 @@ def _waveform_view(result: dict, names) -> dict:
 
 def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None = None,
                   now: datetime | None = None, waveform_elements=None, phasor_elements=None,
-                  correction: dict | None = None, port: dict | None = None) -> dict:
+                  correction: dict | None = None, port: dict | None = None,
+                  tolerance: dict | None = None) -> dict:
     """Everything the sheet shows, for ``templates/sheet.html``.
 
     Parameters
@@ -224,6 +225,8 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         elements, capped). Unknown names raise ``CircuitError``.
     correction, port : dict, optional
         Results of the power tools, shown as optional sections.
+    tolerance : dict, optional
+        The tolerance section (``sheet/tolerance.py``), shown when given.
 
     Returns
     -------
@@ -269,4 +272,5 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         "scope_note": SCOPE_NOTE,
         "correction": tool_section(correction, "correction", known),
         "port": tool_section(port, "port", known),
+        "tolerance": tolerance,
     }

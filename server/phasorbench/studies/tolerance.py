@@ -108,10 +108,10 @@ def check_runs(runs, seed) -> tuple[int, int, list[Diagnostic]]:
     seed = DEFAULT_SEED if seed is None else seed
     if isinstance(runs, bool) or not isinstance(runs, int) or not MIN_RUNS <= runs <= MAX_RUNS:
         problems.append(Diagnostic(f"runs must be a whole number from {MIN_RUNS} to "
-                                   f"{MAX_RUNS:,}", "for example --runs 10000"))
+                                   f"{MAX_RUNS:,}", "for example 10000 runs"))
     if isinstance(seed, bool) or not isinstance(seed, int) or not 0 <= seed < 2 ** 63:
         problems.append(Diagnostic("the seed must be a whole number from 0 to 2^63 - 1",
-                                   "for example --seed 1"))
+                                   "for example seed 1"))
     return runs, seed, problems
 
 
@@ -265,3 +265,53 @@ def _ranked(q, dlog: np.ndarray) -> dict:
             for p, d in zip(q.params, dlog)]
     rows.sort(key=lambda r: (-abs(r[1]), -abs(r[2]), r[0]))
     return {name: {"mag": mag, "deg": deg} for name, mag, deg in rows}
+
+
+def corner_circuit(q, scales) -> "Circuit":
+    """The circuit with every moving part at the values of ``scales`` (one per quantity):
+    what the sheet re-solves to check a worst case."""
+    import dataclasses
+
+    from .parameters import entities, value_matrix
+    circuit = q.circuit
+    values = dict(zip(entities(q), value_matrix(q, np.atleast_2d(scales))[0]))
+    elements = dict(circuit.elements)
+    for name in q.elements:
+        elements[name] = dataclasses.replace(elements[name], value=complex(values[name]))
+    couplings = dict(circuit.couplings)
+    for name in q.couplings:
+        c = couplings[name]
+        m = float(values[name].real)
+        l1, l2 = (elements[n].value.real for n in c.inductors)
+        couplings[name] = dataclasses.replace(c, m=m, k=m / math.sqrt(l1 * l2))
+    return dataclasses.replace(circuit, elements=elements, couplings=couplings)
+
+
+def check_worst_case(circuit, result: dict) -> list[dict]:
+    """Each worst case of ``result`` re-solved by the frequency-response engine on the
+    circuit rebuilt with that point's part values: reported and re-solved |X|."""
+    from .engine import sweep_response
+    texts = [t for t, p in result["probes"].items() if p.get("worst_case")]
+    if not texts:
+        return []
+    batch = prepare(circuit, texts, runs=MIN_RUNS)[0]
+    swept, _ = zero_own_frequency_sources(circuit)
+    out = []
+    for probe in batch.probes:
+        for sense, case in result["probes"][probe.text]["worst_case"]["mag"].items():
+            if not case:
+                continue
+            scales = [case["scales"][p.name] for p in batch.q.params]
+            rebuilt = corner_circuit(_over(batch.q, swept), scales)
+            value = sweep_response(rebuilt, [probe], [circuit.frequency]).values[probe.text][0]
+            again = abs(complex(value))
+            out.append({"probe": probe.text, "sense": sense, "reported": case["value"],
+                        "resolved": again, "relative": abs(again - case["value"]) /
+                        max(abs(again), 1e-300)})
+    return out
+
+
+def _over(q, circuit):
+    """``q`` over another copy of its circuit (own-frequency sources zeroed)."""
+    import dataclasses
+    return dataclasses.replace(q, circuit=circuit)

@@ -22,6 +22,7 @@ from .api import INTERNAL_ERROR, CircuitBody, CorrectionAsk, PortAsk, error_resp
 from .jsonsafe import StrictJSONResponse
 from .limits import check_size
 from .settings import Settings
+from .tolerance_routes import ToleranceAsk, check_work
 
 __all__ = ["CorrectionAsk", "PortAsk", "SheetBody", "router", "sheet_answer"]
 
@@ -41,6 +42,8 @@ class SheetBody(CircuitBody):
                           "asks for it")
     port: PortAsk | None = Field(None, description="add the Thevenin and Norton equivalents "
                                                    "seen from two nodes")
+    tolerance: ToleranceAsk | None = Field(
+        None, description="add a tolerance study, as the page's tolerance tab asks for it")
 
 
 def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
@@ -48,6 +51,7 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     from .. import workflow
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
+    from ..sheet.tolerance import tolerance_section
 
     text, name = body.netlist, answers.PAGE_FILENAME
     check_size(text, settings.max_elements)
@@ -55,8 +59,13 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     correct = body.correct.model_dump() if body.correct else None
     port = (body.port.a, body.port.b) if body.port else None
     tools = run_power_tools(text, name, correct=correct, port=port)
+    if body.tolerance:
+        check_work(workflow.read_circuit(text, name), body.tolerance.model_dump())
     context = sheet_context(text, name, result=result, waveform_elements=body.elements,
-                            phasor_elements=body.elements, **tools)
+                            phasor_elements=body.elements, **tools,
+                            tolerance=tolerance_section(
+                                text, name, body.tolerance.model_dump()
+                                if body.tolerance else None))
     return render_context(context), context["filename"]
 
 

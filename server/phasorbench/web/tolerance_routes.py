@@ -14,7 +14,7 @@ import threading
 import time
 
 from fastapi import Request
-from pydantic import Field
+from pydantic import BaseModel, Field
 
 from ..errors import CircuitError, Diagnostic
 from ..model import VOLTAGE_KINDS
@@ -31,8 +31,8 @@ MAX_JOBS = 2
 KEEP_SECONDS = 600
 
 
-class ToleranceBody(api.CircuitBody):
-    """A circuit text, the probes and the study's settings."""
+class ToleranceAsk(BaseModel):
+    """What a tolerance study asks for (also the sheet's ``tolerance`` field)."""
 
     probes: list[str] = Field(default_factory=list, description="probes: V(n), V(a, b), "
                               "I(E), Z(a, b), Z(n), X/Y")
@@ -42,18 +42,40 @@ class ToleranceBody(api.CircuitBody):
     limits: list[str] = Field(default_factory=list,
                               description='limits on magnitudes, e.g. "V(out) 0.95..1.05"')
 
+
+class ToleranceBody(api.CircuitBody, ToleranceAsk):
+    """A circuit text, the probes and the study's settings."""
+
+    display: bool = Field(False, description="add the page's strings and pictures "
+                          "(display: settings, tables, histogram and sensitivity SVGs)")
+
     def ask(self) -> dict:
         return {"probes": self.probes, "runs": self.runs, "seed": self.seed,
-                "worst_case": self.worst_case, "limits": self.limits}
+                "worst_case": self.worst_case, "limits": self.limits,
+                "display": self.display}
 
 
 def tolerance_answer(text: str, ask: dict, settings: Settings, progress=None,
                      cancel=None) -> dict:
     """The tolerance JSON of studies.md, after the work bound."""
-    from ..studies.tolerance import DEFAULT_RUNS, run_tolerance
-    from ..studies.worstcase import MAX_ENUMERATED
+    from ..studies.tolerance import run_tolerance
     circuit = _read(text, settings)
-    if not ask["probes"] and not ask["limits"]:
+    check_work(circuit, ask)
+    result = run_tolerance(circuit, ask["probes"], ask.get("runs"), ask.get("seed"),
+                           ask.get("worst_case", False), ask.get("limits") or (),
+                           progress=progress, cancel=cancel)
+    if ask.get("display"):
+        from ..presentation.cautions import TOLERANCE_NOTE
+        from ..presentation.studies.tolerance import view
+        result["display"] = {**view(result), "caution": TOLERANCE_NOTE}
+    return result
+
+
+def check_work(circuit, ask: dict) -> None:
+    """Refuse a study above the server's bound, or with no probe (``CircuitError``)."""
+    from ..studies.tolerance import DEFAULT_RUNS
+    from ..studies.worstcase import MAX_ENUMERATED
+    if not ask.get("probes") and not ask.get("limits"):
         raise CircuitError([Diagnostic("no probe given", "add a probe, e.g. V(out)")])
     unknowns = len(circuit.nodes()) - 1 + sum(
         e.kind in VOLTAGE_KINDS or e.kind == "transformer"
@@ -69,9 +91,6 @@ def tolerance_answer(text: str, ask: dict, settings: Settings, progress=None,
             f"server's limit of {MAX_TOLERANCE_WORK:,} solves × unknowns",
             f"use at most {most:,} runs for this circuit, or run 'phasorbench "
             "tolerance' on the command line")])
-    return run_tolerance(circuit, ask["probes"], ask.get("runs"), ask.get("seed"),
-                         ask.get("worst_case", False), ask.get("limits") or (),
-                         progress=progress, cancel=cancel)
 
 
 async def tolerance(body: ToleranceBody, request: Request):

@@ -100,7 +100,7 @@ def worst_line(probe: dict) -> str:
         if case:
             where = "inside the box" if case["at"] == "interior" else "at a corner"
             parts.append(f"{sense} {eng(case['value'], unit, 6)} ({where})")
-    return f"worst case of |X| by {method}, refined inside the box: " + "; ".join(parts)
+    return f"Worst case of |X| by {method}, refined inside the box: " + "; ".join(parts)
 
 
 def yield_line(y: dict | None) -> str:
@@ -113,3 +113,41 @@ def yield_line(y: dict | None) -> str:
 
 def limit_text(limit: dict, unit: str) -> str:
     return f"{eng(limit['min'], unit)} ≤ |X| ≤ {eng(limit['max'], unit)}"
+
+
+def view(result: dict) -> dict:
+    """Everything the page's tab and the sheet's section show of one study: strings,
+    rows and the pictures (drawn by ``drawing/tolerance.py``)."""
+    from ..drawing.tolerance import histogram_svg, sensitivity_svg
+    probes = []
+    for text, probe in result["probes"].items():
+        limits = [(l["min"], l["max"]) for l in probe["limits"]]
+        probes.append({
+            "text": text, "unit": probe["unit"],
+            "nominal": phasor(probe["nominal"], probe["unit"]),
+            "stats": statistic_rows(probe),
+            "mag_svg": histogram_svg(probe["mag"], f"|{text}|", probe["unit"],
+                                     probe["nominal"]["mag"], limits),
+            "deg_svg": histogram_svg(probe["deg"], f"arg {text}", "°",
+                                     probe["nominal"]["deg"]),
+            "sens_svg": sensitivity_svg(probe["sensitivities"], f"sensitivity of |{text}|: "
+                                        "∂ln|X|/∂ln p"),
+            "sensitivities": sensitivity_rows(probe),
+            "worst": worst_line(probe), "worst_rows": worst_rows(probe, result),
+            "limits": [limit_text(l, probe["unit"]) for l in probe["limits"]],
+            "yield": yield_line(probe["yield"])})
+    return {"settings": settings_line(result), "quantities": quantity_rows(result),
+            "probes": probes, "yield": yield_line(result["yield"]),
+            "warnings": list(result["warnings"])}
+
+
+def check_rows(checks: list[dict], result: dict) -> list[dict]:
+    """The worst cases re-solved: reported, re-solved, relative difference."""
+    rows = []
+    for c in checks:
+        unit = result["probes"][c["probe"]]["unit"]
+        rows.append({"probe": c["probe"], "sense": c["sense"],
+                     "reported": eng(c["reported"], unit, 8),
+                     "resolved": eng(c["resolved"], unit, 8),
+                     "difference": f"{c['relative']:.1e}", "ok": c["relative"] < 1e-8})
+    return rows
