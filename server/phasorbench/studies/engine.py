@@ -1,6 +1,13 @@
-"""Solving one circuit at many frequencies: the solver's own assembly per frequency,
-small systems as one stacked dense solve per chunk, large ones sparse (SuperLU) per
-frequency; probes read from the unknowns (studies.md, "Probes", "Frequency response").
+"""Solving one circuit at many frequencies (studies.md, "Probes", "Frequency response").
+
+The solver's one assembly (``solver.assemble``) runs twice, at 1 Hz and 2 Hz, to learn
+the pattern: every unsummed stamp of the MNA matrix is a constant, proportional to ω
+(jωC, jωL, jωM) or inversely proportional to it (1/jωL, 1/jωC), and the right-hand
+side does not depend on ω at all. Per frequency only the values are restamped, summed
+per entry in extended precision and rounded once, exactly as the single solve rounds
+them; small systems are then solved as one stacked dense solve per chunk, large ones
+with SuperLU per frequency over the same pattern. Probes are read from the unknowns as
+arrays, a whole chunk at a time.
 
 ``Z`` probes use the same matrix with a unit test current as the right-hand side (the
 independent sources only ever enter the right-hand side, so that is the circuit with
@@ -10,19 +17,23 @@ not raised: its values are NaN and its index is listed.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, replace
 
 import numpy as np
+import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
+from ..accuracy import CLD, EPS, LD, PI
 from ..model import GROUND, PASSIVE_KINDS, Circuit
 from ..solver import assemble
-from .probes import Current, Impedance, Probe, Voltage
+from .probes import Impedance, Probe, Voltage
+
+__all__ = ["DENSE_LIMIT", "CHUNK_BYTES", "Response", "SweepEngine", "sweep_response",
+           "zero_own_frequency_sources"]
 
 #: Systems up to this many unknowns are solved as stacked dense matrices.
 DENSE_LIMIT = 120
-#: Bytes of one chunk of stacked dense matrices (bounds the memory of a sweep).
+#: Bytes of one chunk of stacked matrices and stamp values (bounds a sweep's memory).
 CHUNK_BYTES = 64 * 2**20
 
 
@@ -46,6 +57,132 @@ def zero_own_frequency_sources(circuit: Circuit) -> tuple[Circuit, list[str]]:
     for name in own:
         elements[name] = replace(elements[name], value=0j, frequency=None)
     return replace(circuit, elements=elements), own
+
+
+class SweepEngine:
+    """The pattern of ``circuit``'s MNA system, built once; ``response(frequencies)``
+    restamps values and solves (own-``freq`` sources zeroed by the caller)."""
+
+    def __init__(self, circuit: Circuit, probes: list[Probe]):
+        self.circuit, self.probes = circuit, probes
+        low, high = assemble(circuit, 1.0), assemble(circuit, 2.0)
+        self.system = low
+        size = self.size = low["size"]
+        rows, cols, v1 = low["A"].joined()
+        v2 = high["A"].joined()[2]
+        w1 = 2 * PI
+        with np.errstate(all="ignore"):
+            ratio = np.where(v1 != 0, v2 / np.where(v1 != 0, v1, 1), 1)
+        grows = np.abs(ratio - 2) < 1e-9
+        falls = np.abs(ratio - 0.5) < 1e-9
+        key = rows * size + cols
+        order = np.argsort(key, kind="stable")
+        key = key[order]
+        self._const = np.where(grows | falls, 0, v1)[order].astype(CLD)
+        self._grow = np.where(grows, v1 / w1, 0)[order].astype(CLD)
+        self._fall = np.where(falls, v1 * w1, 0)[order].astype(CLD)
+        self._starts = np.flatnonzero(np.r_[True, key[1:] != key[:-1]]) if len(key) \
+            else np.zeros(0, dtype=np.int64)
+        unique = key[self._starts]
+        self._rows, self._cols = unique // max(size, 1), unique % max(size, 1)
+        by_column = np.lexsort((self._rows, self._cols))
+        self._csc_order = by_column
+        self._csc_indices = self._rows[by_column]
+        self._csc_indptr = np.searchsorted(self._cols[by_column], np.arange(size + 1))
+        self._keys, self._rhs = _right_hand_sides(low, probes)
+        self._readers = {p.text: [_reader(part, low, circuit, self._keys)
+                                  for part in p.parts()] for p in probes}
+        self.dense = size <= DENSE_LIMIT
+
+    def matrices(self, frequencies: np.ndarray) -> np.ndarray:
+        """The rounded entries of the matrix at each frequency, shape (F, entries)."""
+        omega = (2 * PI * np.asarray(frequencies, dtype=LD))[:, None]
+        vals = self._const + self._grow * omega + self._fall / omega
+        if not len(self._starts):
+            return np.zeros((len(frequencies), 0), dtype=complex)
+        summed = np.add.reduceat(vals, self._starts, axis=1)
+        parts = np.add.reduceat(np.abs(vals), self._starts, axis=1)
+        rounded = summed.astype(complex)
+        # the single solve's rule (accuracy.assembled): a sum within the rounding of its
+        # own parts is zero
+        rounded[np.abs(summed) <= 4 * EPS * parts] = 0
+        return rounded
+
+    def sparse_matrix(self, entries: np.ndarray):
+        """One frequency's entries as the CSC matrix the single solve factors."""
+        return sp.csc_matrix((entries[self._csc_order], self._csc_indices,
+                              self._csc_indptr), shape=(self.size, self.size))
+
+    def response(self, frequencies) -> Response:
+        frequencies = np.asarray(frequencies, dtype=float)
+        count = len(frequencies)
+        values = {p.text: np.full(count, np.nan + 0j) for p in self.probes}
+        singular, zero_den = [], {p.text: [] for p in self.probes}
+        size, stamps = self.size, max(1, len(self._const))
+        per_point = 48 * stamps + (16 * size * size if self.dense else 0) + \
+            16 * size * self._rhs.shape[1]
+        chunk = max(1, CHUNK_BYTES // per_point)
+        with np.errstate(all="ignore"):
+            for start in range(0, count, chunk):
+                f = frequencies[start:start + chunk]
+                x, bad = self._solve(f)
+                singular.extend((start + bad).tolist())
+                omega = 2 * np.pi * f
+                for probe in self.probes:
+                    parts = [read(x, omega) for read in self._readers[probe.text]]
+                    if len(parts) == 1:
+                        out = parts[0]
+                    else:
+                        den = parts[1]
+                        zero = ~np.isfinite(den) | (den == 0)
+                        zero[bad] = False
+                        zero_den[probe.text].extend((start + np.flatnonzero(zero)).tolist())
+                        out = np.where(zero, np.nan, parts[0] / np.where(zero, 1, den))
+                    out = np.asarray(out, dtype=complex) * np.ones(len(f))
+                    out[bad] = np.nan
+                    values[probe.text][start:start + len(f)] = out
+        return Response(frequencies, values, sorted(singular), zero_den)
+
+    def _solve(self, f: np.ndarray):
+        """Unknowns (F, size, right-hand sides) and the indices of singular points."""
+        b = self._rhs
+        if not self.size:
+            return np.zeros((len(f), 0, b.shape[1]), dtype=complex), np.zeros(0, int)
+        entries = self.matrices(f)
+        if self.dense:
+            stack = np.zeros((len(f), self.size, self.size), dtype=complex)
+            stack[:, self._rows, self._cols] = entries
+            try:
+                x = np.linalg.solve(stack, b)
+                if np.all(np.isfinite(x)) and _well_posed(stack, x, b):
+                    return x, np.zeros(0, int)
+            except np.linalg.LinAlgError:
+                pass
+            x = np.full((len(f), self.size, b.shape[1]), np.nan + 0j)
+            for k in range(len(f)):         # a chunk with a singular point: one by one
+                try:
+                    xk = np.linalg.solve(stack[k], b)
+                except np.linalg.LinAlgError:
+                    continue
+                if np.all(np.isfinite(xk)) and _well_posed(stack[k:k + 1], xk[None], b):
+                    x[k] = xk
+        else:
+            x = np.full((len(f), self.size, b.shape[1]), np.nan + 0j)
+            for k in range(len(f)):
+                try:
+                    xk = splu(self.sparse_matrix(entries[k])).solve(b)
+                except RuntimeError:
+                    continue
+                if np.all(np.isfinite(xk)):
+                    x[k] = xk
+        bad = np.flatnonzero(~np.all(np.isfinite(x), axis=(1, 2)))
+        return x, bad
+
+
+def sweep_response(circuit: Circuit, probes: list[Probe], frequencies) -> Response:
+    """Every probe at every frequency (Hz) of ``circuit`` (own-``freq`` sources zeroed
+    by the caller). NaN marks a singular frequency or a zero denominator."""
+    return SweepEngine(circuit, probes).response(frequencies)
 
 
 def _unknown(system: dict, node: str) -> int:
@@ -88,6 +225,47 @@ def _simple_value(part, x: np.ndarray, system: dict, circuit: Circuit, omega: fl
     return value * x[system["branch_of"][e.sense_element]]      # cccs
 
 
+def _difference(column: int, a: int, b: int):
+    def read(x, omega):
+        va = x[:, a, column] if a >= 0 else 0j
+        vb = x[:, b, column] if b >= 0 else 0j
+        return va - vb
+    return read
+
+
+def _reader(part, system: dict, circuit: Circuit, keys: list):
+    """A function (unknowns, ω) → the part's value at each frequency of a chunk."""
+    if isinstance(part, Voltage):
+        return _difference(0, _unknown(system, part.a.node),
+                           _unknown(system, part.b.node) if part.b else -1)
+    if isinstance(part, Impedance):
+        key = (part.a.node, part.b.node if part.b else GROUND)
+        return _difference(keys.index(key), _unknown(system, key[0]),
+                           _unknown(system, key[1]))
+    e = circuit.elements[part.element.name]
+    branch = system["branch_of"].get(e.name)
+    if branch is not None:
+        return lambda x, omega: x[:, branch, 0]
+    if e.kind in PASSIVE_KINDS:
+        across = _difference(0, _unknown(system, e.nodes[0]), _unknown(system, e.nodes[1]))
+        value = e.value
+        if e.kind in ("resistor", "impedance"):
+            return lambda x, omega: across(x, omega) / value
+        if e.kind == "capacitor":
+            return lambda x, omega: 1j * omega * value * across(x, omega)
+        if e.kind == "inductor":
+            return lambda x, omega: across(x, omega) / (1j * omega * value)
+        return lambda x, omega: value * across(x, omega)          # admittance
+    if e.kind == "current":
+        return lambda x, omega: np.full(x.shape[0], complex(e.value))
+    if e.kind == "vccs":
+        sensed = _difference(0, _unknown(system, e.sense_nodes[0]),
+                             _unknown(system, e.sense_nodes[1]))
+        return lambda x, omega: e.value * sensed(x, omega)
+    sense = system["branch_of"][e.sense_element]                   # cccs
+    return lambda x, omega: e.value * x[:, sense, 0]
+
+
 def _right_hand_sides(system: dict, probes: list[Probe]):
     size = system["size"]
     columns = [np.asarray(system["b"], dtype=complex)]
@@ -106,66 +284,6 @@ def _right_hand_sides(system: dict, probes: list[Probe]):
                 keys.append(key)
                 columns.append(rhs)
     return keys, np.stack(columns, axis=1)
-
-
-def sweep_response(circuit: Circuit, probes: list[Probe], frequencies) -> Response:
-    """Every probe at every frequency (Hz) of ``circuit`` (own-``freq`` sources zeroed
-    by the caller). NaN marks a singular frequency or a zero denominator."""
-    frequencies = np.asarray(frequencies, dtype=float)
-    values = {p.text: np.full(len(frequencies), np.nan + 0j) for p in probes}
-    singular, zero_den = [], {p.text: [] for p in probes}
-    with np.errstate(all="ignore"):
-        first = assemble(circuit, float(frequencies[0]))
-        size = first["size"]
-        dense = size <= DENSE_LIMIT
-        chunk = max(1, CHUNK_BYTES // max(1, 16 * size * size)) if dense else 1
-        for start in range(0, len(frequencies), chunk):
-            block = range(start, min(start + chunk, len(frequencies)))
-            systems = [first if k == 0 else assemble(circuit, float(frequencies[k]))
-                       for k in block]
-            solved = _solve_block(systems, probes, dense)
-            for k, system, result in zip(block, systems, solved):
-                if result is None:
-                    singular.append(k)
-                    continue
-                keys, x = result
-                test = {key: x[:, j] for j, key in enumerate(keys) if key is not None}
-                omega = 2 * math.pi * float(frequencies[k])
-                for probe in probes:
-                    parts = [_simple_value(part, x[:, 0], system, circuit, omega, test)
-                             for part in probe.parts()]
-                    if len(parts) == 1:
-                        values[probe.text][k] = parts[0]
-                    elif parts[1] == 0 or not np.isfinite(parts[1]):
-                        zero_den[probe.text].append(k)
-                    else:
-                        values[probe.text][k] = parts[0] / parts[1]
-    return Response(frequencies, values, singular, zero_den)
-
-
-def _solve_block(systems, probes, dense):
-    rhs = [_right_hand_sides(s, probes) for s in systems]
-    if dense and systems[0]["size"]:
-        stack = np.stack([s["matrix"].toarray() for s in systems])
-        b = np.stack([r[1] for r in rhs])
-        try:
-            x = np.linalg.solve(stack, b)
-            if np.all(np.isfinite(x)) and _well_posed(stack, x, b):
-                return [(r[0], xi) for r, xi in zip(rhs, x)]
-        except np.linalg.LinAlgError:
-            pass
-    out = []
-    for s, (keys, b) in zip(systems, rhs):
-        if not s["size"]:
-            out.append((keys, np.zeros((0, b.shape[1]), dtype=complex)))
-            continue
-        try:
-            x = splu(s["matrix"]).solve(b)
-        except RuntimeError:
-            out.append(None)
-            continue
-        out.append((keys, x) if np.all(np.isfinite(x)) else None)
-    return out
 
 
 def _well_posed(stack, x, b) -> bool:

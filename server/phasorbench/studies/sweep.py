@@ -14,7 +14,7 @@ import math
 import numpy as np
 
 from ..errors import CircuitError, Diagnostic
-from .engine import sweep_response, zero_own_frequency_sources
+from .engine import SweepEngine, zero_own_frequency_sources
 from .probes import parse_probes
 
 DEFAULT_POINTS = 200
@@ -93,7 +93,7 @@ def run_sweep(circuit, probe_texts, start=None, stop=None, points=None,
         warnings.append(f"{', '.join(own)} run at their own frequency and are zeroed "
                         "during the sweep")
     frequencies = grid(start, stop, points, spacing)
-    response = sweep_response(swept, probes, frequencies)
+    response = SweepEngine(swept, probes).response(frequencies)
     if response.singular:
         shown = ", ".join(f"{frequencies[k]:g} Hz" for k in response.singular[:6])
         warnings.append(f"the circuit is singular at {len(response.singular)} "
