@@ -60,6 +60,31 @@ export async function cancelToleranceJob(job) {
   }
 }
 
+/** `ask`: {probes, from, to, points, spacing, draw: {width, height, magnitude}, arrays}. */
+export const postSweep = (netlist, ask, signal) => postJSON("/api/sweep", {netlist, ...ask}, signal);
+
+/** The sweep as CSV: {ok: true, blob} or {ok: false, status, data: {errors, warnings}}. */
+export async function postSweepCsv(netlist, ask) {
+  let response;
+  try {
+    response = await fetch("/api/sweep/csv", {
+      method: "POST",
+      headers: {"Content-Type": "application/json", "Accept": "text/csv"},
+      body: JSON.stringify({netlist, ...ask}),
+    });
+  } catch {
+    return {ok: false, status: 0, data: NO_ANSWER};
+  }
+  if (response.ok) return {ok: true, blob: await response.blob()};
+  let data;
+  try {
+    data = await response.json();
+  } catch {
+    data = {errors: [{line: null, column: null, message: `the server answered ${response.status} without a CSV`, hint: ""}], warnings: []};
+  }
+  return {ok: false, status: response.status, data};
+}
+
 export async function getSamples() {
   try {
     const response = await fetch("/api/samples", {headers: {"Accept": "application/json"}});

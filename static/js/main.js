@@ -12,6 +12,7 @@ import {exportSheet} from "./sheet-export.js";
 import {loadSaved, save} from "./store.js";
 import {renderFacts, renderSummary} from "./summary.js";
 import {markSelected, renderBranchTable, renderNodeTable} from "./tables.js";
+import {createSweep} from "./sweep.js";
 import {createThreePhase} from "./threephase.js";
 import {createTolerance} from "./tolerance.js";
 import {createTabs, savedTool} from "./tools.js";
@@ -33,7 +34,7 @@ const state = {
 };
 
 let editor;
-let tools;               // the Tools panel: {tabs, correction, port, threePhase}
+let tools;               // the Tools panel: {tabs, correction, port, sweep, threePhase}
 const limit = () => Number(document.body.dataset.maxViewElements) || 12;
 
 function abortable(kind) {
@@ -218,6 +219,7 @@ function renderResults() {
 function updateTools(choices) {
   tools.correction.update(choices);
   tools.port.update(choices);
+  tools.sweep.update(choices);
   tools.threePhase.update(choices.groups, state.solvedText);
   const threePhase = choices.groups.length > 0;
   tools.tabs.offer("three-phase", threePhase);
@@ -388,6 +390,7 @@ function setupTools() {
     correction: createCorrection({getSolved: solvedText, onAppend: appendLines}),
     port: createPort({getSolved: solvedText}),
     tolerance: createTolerance({getSolved: solvedText}),
+    sweep: createSweep({getSolved: solvedText}),
     tabs: createTabs($("tool-tabs"), {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),
@@ -414,6 +417,7 @@ async function exportCurrentSheet() {
       correct: tools.correction.sheetRequest(text),
       port: tools.port.sheetRequest(text),
       tolerance: tools.tolerance.sheetRequest(text),
+      sweep: tools.sweep.sheetRequest(text),
     });
     if (!result.ok) {
       const data = result.data || {};

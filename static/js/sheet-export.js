@@ -12,7 +12,8 @@ export function attachmentName(header) {
   return match && /^[A-Za-z0-9._-]+$/.test(match[1]) ? match[1] : FALLBACK_NAME;
 }
 
-function saveBlob(blob, name) {
+/** Save `blob` as a download named `name`. */
+export function saveBlob(blob, name) {
   const url = URL.createObjectURL(blob);
   const link = document.createElement("a");
   link.href = url;
@@ -39,7 +40,8 @@ async function errorsOf(response) {
  * Export the solved sheet of `netlist`, drawing the `elements` chosen on the page
  * (an empty or missing list takes the sheet's default set). `tools` may carry the
  * page's power tools as their panels asked for them: `correct` (the body of
- * POST /api/correct without `netlist`) and `port` ({a, b}); the sheet then shows them.
+ * POST /api/correct without `netlist`), `port` ({a, b}) and `sweep` (the frequency
+ * response tab's {probes, from, to, points, spacing, magnitude}); the sheet then shows them.
  *
  * Resolves to {ok: true, filename} once the download has started, or to
  * {ok: false, status, data} with the API's {errors, warnings} (422 for a circuit with
@@ -51,6 +53,7 @@ export async function exportSheet(netlist, elements, tools = {}) {
   if (tools.correct) body.correct = tools.correct;
   if (tools.port) body.port = tools.port;
   if (tools.tolerance) body.tolerance = tools.tolerance;
+  if (tools.sweep) body.sweep = tools.sweep;
   let response;
   try {
     response = await fetch("/api/sheet", {

@@ -44,3 +44,31 @@ def test_work_bound_is_stated(api):  # noqa: F811
         f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\n" for k in range(60))
     r = api.post("/api/sweep", json={"netlist": big, "probes": ["V(n5)"], "points": 100000})
     assert r.status_code == 422 and "points × unknowns" in r.json()["errors"][0]["message"]
+
+
+def test_draw_adds_the_picture_and_the_page_strings(api):  # noqa: F811
+    r = api.post("/api/sweep", json={"netlist": RLC, "probes": ["I(R1)"], "from": 1000,
+                                     "to": 50000, "points": 100, "arrays": False,
+                                     "draw": {"width": 700, "height": 420}})
+    assert r.status_code == 200
+    body = r.json()
+    assert body["svg"].startswith("<svg") and 'width="700"' in body["svg"]
+    assert "frequencies_hz" not in body and "mag" not in body["probes"]["I(R1)"]
+    d = body["display"]
+    (row,) = d["resonances"]
+    # check-values C5: f0 = 7957.75 Hz, Q = 25, B = 2000 rad/s = 318.3 Hz
+    assert row["cells"][3] == "7.95775 kHz" and row["cells"][6] == "25"
+    assert row["cells"][7] == "318.3 Hz"
+    assert len(d["readout"]["index"]) == 100 and d["readout"]["frequency"][0] == "1 kHz"
+
+
+def test_csv_route_gives_every_point(api):  # noqa: F811
+    r = api.post("/api/sweep/csv", json={"netlist": RLC, "probes": ["I(R1)"], "from": 1000,
+                                         "to": 50000, "points": 100})
+    assert r.status_code == 200 and r.headers["content-type"].startswith("text/csv")
+    assert "attachment" in r.headers["content-disposition"]
+    lines = r.text.splitlines()
+    assert len(lines) == 101                       # common practice: a header, a row a point
+    r = api.post("/api/sweep/csv", json={"netlist": RLC, "probes": ["I(R9)"]})
+    # studies.md: bad probes answer 422 in the language's error shape
+    assert r.status_code == 422 and "R9" in r.json()["errors"][0]["message"]

@@ -9,7 +9,7 @@ import sys
 from ..errors import CircuitError, Diagnostic
 from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_diagnostics
 
-__all__ = ["add_sweep_command", "command_sweep", "frequency_argument"]
+__all__ = ["add_sweep_command", "command_sweep", "frequency_argument", "summary"]
 
 _PREFIX = {"": 1.0, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9}
 _FREQUENCY = re.compile(r"\s*([0-9.]+(?:[eE][-+]?[0-9]+)?)\s*([kMGm]?)(?:Hz)?\s*")
@@ -58,6 +58,7 @@ def command_sweep(args) -> int:
     if args.json:
         body = dump_json(result) + "\n"
     elif args.csv:
+        from ..presentation.studies.sweep import csv_text
         body = csv_text(result)
     else:
         body = summary(result)
@@ -82,27 +83,6 @@ def _print_probe_diagnostics(diagnostics: list[Diagnostic], name: str, text: str
                 print(f"  hint: {d.hint}", file=sys.stderr)
         else:
             print_diagnostics([d], name, text)
-
-
-def _num(value) -> str:
-    return "" if value is None else f"{value:.9g}"
-
-
-def csv_text(result: dict) -> str:
-    probes = list(result["probes"])
-    head = ["frequency_hz"]
-    for p in probes:
-        unit = result["probes"][p]["unit"]
-        head += [f"{p} mag{f' ({unit})' if unit else ''}", f"{p} deg",
-                 f"{p} re", f"{p} im"]
-    rows = [",".join('"' + h.replace('"', '""') + '"' for h in head)]
-    for k, f in enumerate(result["frequencies_hz"]):
-        cells = [_num(f)]
-        for p in probes:
-            data = result["probes"][p]
-            cells += [_num(data[key][k]) for key in ("mag", "deg", "re", "im")]
-        rows.append(",".join(cells))
-    return "\n".join(rows) + "\n"
 
 
 def summary(result: dict, rows: int = 12) -> str:

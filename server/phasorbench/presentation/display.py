@@ -317,7 +317,7 @@ def tool_choices(result: dict) -> dict:
     """What the page's tools offer to pick: sources to correct, nodes, three-phase blocks.
 
     ``{"sources": [{"name", "kind", "three_phase", "lines", "label"}], "nodes": [...],
-    "groups": [{"name", "label"}]}``. A correctable source is an independent voltage or
+    "groups": [{"name", "label"}], "probes": ["Z(n)", "V(n)", "I(E)", ...]}``. A correctable source is an independent voltage or
     current source of its own, or a ``voltage3`` block (its phases are not offered alone).
     """
     sources = []
@@ -334,7 +334,12 @@ def tool_choices(result: dict) -> dict:
             sources.append({"name": name, "kind": "voltage3", "three_phase": True,
                             "lines": list(g.get("lines", [])),
                             "label": f"{name} (voltage3 {_group_terminals(name, g)})"})
-    return {"sources": sources, "nodes": list(result.get("nodes", {})), "groups": groups}
+    nodes = list(result.get("nodes", {}))
+    # What the frequency-response tab offers to sweep (studies.md, "Probes").
+    live = [n for n in nodes if n != "0"]
+    probes = ([f"Z({n})" for n in live] + [f"V({n})" for n in live] +
+              [f"I({name})" for name in result.get("elements", {})])
+    return {"sources": sources, "nodes": nodes, "groups": groups, "probes": probes}
 
 
 # --- power tools ------------------------------------------------------------------------

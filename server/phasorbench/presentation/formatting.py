@@ -26,6 +26,7 @@ __all__ = [
     "MISSING",
     "ROUND_OFF",
     "angle",
+    "decibels",
     "degrees",
     "element_rows",
     "shown_digits",
@@ -176,6 +177,23 @@ def degrees(deg, digits: int = 2) -> str:
     elif float(text) == -180:
         text = f"{180.0:.{digits}f}"  # rounding may land on -180; the contract excludes it
     return text + "°"
+
+
+def decibels(magnitude, digits: int = 2) -> str:
+    """A magnitude ratio in decibels, ``20·log10(magnitude)``, ``digits`` decimals.
+
+    >>> decibels(0.7071067811865476), decibels(10), decibels(0)
+    ('-3.01 dB', '20.00 dB', '-∞ dB')
+    """
+    if _is_missing(magnitude):
+        return MISSING
+    magnitude = abs(float(magnitude))
+    if magnitude == 0:
+        return "-∞ dB"
+    text = f"{20 * math.log10(magnitude):.{digits}f}"
+    if float(text) == 0:
+        text = f"{0.0:.{digits}f}"
+    return text + " dB"
 
 
 def angle(deg, digits: int = 2) -> str:

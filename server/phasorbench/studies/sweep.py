@@ -15,7 +15,7 @@ import numpy as np
 
 from ..errors import CircuitError, Diagnostic
 from .engine import SweepEngine, zero_own_frequency_sources
-from .probes import parse_probes
+from .probes import describe, parse_probes
 
 DEFAULT_POINTS = 200
 MAX_POINTS = 100_000
@@ -106,10 +106,12 @@ def run_sweep(circuit, probe_texts, start=None, stop=None, points=None,
     from .resonance import find_resonances
     resonances, more = find_resonances(swept, probes, response, circuit.frequency or None)
     warnings.extend(more)
-    return {"frequencies_hz": frequencies.tolist(),
+    return {"title": circuit.title, "frequency_hz": circuit.frequency or None,
+            "frequencies_hz": frequencies.tolist(),
             "range": {"from_hz": start, "to_hz": stop, "points": points,
                       "spacing": spacing},
-            "probes": {p.text: {"unit": p.unit, **_phasors(response.values[p.text])}
+            "probes": {p.text: {"unit": p.unit, "ratio": p.is_ratio, "meaning": describe(p),
+                                **_phasors(response.values[p.text])}
                        for p in probes},
             "resonances": resonances,
             "singular_hz": [float(frequencies[k]) for k in response.singular],

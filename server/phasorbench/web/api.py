@@ -106,8 +106,9 @@ def error_response(status: int, message: str, hint: str = "") -> StrictJSONRespo
                               status_code=status)
 
 
-async def run_job(request: Request, job, *args) -> StrictJSONResponse:
-    """Run ``job(*args, settings)`` in the solve pool and map its outcome to a response."""
+async def run_job(request: Request, job, *args, respond=StrictJSONResponse):
+    """Run ``job(*args, settings)`` in the solve pool and map its outcome to a response
+    (``respond(answer)``: JSON unless the route says otherwise)."""
     state = request.app.state
     loop = asyncio.get_running_loop()
     try:
@@ -118,7 +119,7 @@ async def run_job(request: Request, job, *args) -> StrictJSONResponse:
     except Exception:
         log.exception("request %s %s failed", request.method, request.url.path)
         return error_response(500, INTERNAL_ERROR)
-    return StrictJSONResponse(answer)
+    return respond(answer)
 
 
 async def check(body: CircuitBody, request: Request):

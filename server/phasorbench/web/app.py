@@ -12,7 +12,7 @@ from concurrent.futures import ThreadPoolExecutor
 
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
-from fastapi.responses import HTMLResponse
+from fastapi.responses import HTMLResponse, Response
 from fastapi.routing import APIRoute
 from fastapi.templating import Jinja2Templates
 from starlette.routing import Mount
@@ -50,6 +50,9 @@ def _routes(settings: Settings) -> list:
         post("/api/correct", api.correct, "Size the power-factor correction capacitor of a source"),
         post("/api/port", api.port, "Thevenin and Norton equivalents seen from two nodes"),
         post("/api/sweep", study_routes.sweep, "Frequency response of probes over a range"),
+        APIRoute("/api/sweep/csv", study_routes.sweep_csv, methods=["POST"],
+                 summary="The same frequency response as a CSV file",
+                 response_class=Response),
         post("/api/tolerance", tolerance_routes.tolerance,
              "Monte Carlo, sensitivities, worst case and yield over the tolerances"),
         post("/api/tolerance/jobs", tolerance_routes.start_job,

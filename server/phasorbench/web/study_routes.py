@@ -1,4 +1,6 @@
-"""The studies' JSON routes (thin handlers and their request models): ``POST /api/sweep``.
+"""The studies' routes (thin handlers and their request models): ``POST /api/sweep``
+(the sweep JSON; with ``draw``, also the response picture and the page's strings) and
+``POST /api/sweep/csv`` (the same sweep as a CSV download).
 
 Bad probes and ranges answer 422 in the language's error shape (``api.run_job``); the
 work of one sweep is bounded by points × unknowns (``MAX_SWEEP_WORK``), said in the error.
@@ -6,17 +8,32 @@ work of one sweep is bounded by points × unknowns (``MAX_SWEEP_WORK``), said in
 
 from __future__ import annotations
 
+from typing import Literal
+
 from fastapi import Request
-from pydantic import Field
+from fastapi.responses import Response
+from pydantic import BaseModel, Field
 
 from ..errors import CircuitError, Diagnostic
 from ..model import VOLTAGE_KINDS
 from . import api
 from .answers import _read
-from .settings import Settings
+from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX, Settings
 
 #: Largest points × unknowns of one sweep request.
 MAX_SWEEP_WORK = 1_000_000
+
+
+class DrawAsk(BaseModel):
+    """The response picture a sweep answer should carry."""
+
+    width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
+                              description="picture width in px")
+    height: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
+                               description="picture height in px")
+    magnitude: Literal["auto", "db", "units"] = Field(
+        "auto", description="magnitude scale shown first: dB, the probes' units, or auto "
+                            "(dB when every probe is a ratio of like quantities)")
 
 
 class SweepBody(api.CircuitBody):
@@ -27,6 +44,16 @@ class SweepBody(api.CircuitBody):
     stop: float | None = Field(None, alias="to", description="highest frequency, Hz")
     points: int | None = Field(None, description="number of frequencies (2 to 100,000)")
     spacing: str | None = Field(None, description="log (default) or linear")
+    draw: DrawAsk | None = Field(None, description="add the response picture (svg) and "
+                                                   "the page's strings (display)")
+    arrays: bool = Field(True, description="false leaves out the per-point arrays "
+                                           "(frequencies_hz, each probe's re/im/mag/deg)")
+
+    def ask(self) -> dict:
+        return {"probes": self.probes, "start": self.start, "stop": self.stop,
+                "points": self.points, "spacing": self.spacing,
+                "draw": self.draw.model_dump() if self.draw else None,
+                "arrays": self.arrays}
 
 
 def sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
@@ -47,9 +74,44 @@ def sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
                      ask.get("points"), ask.get("spacing"))
 
 
+def drawn_sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
+    """The sweep JSON, with the picture and the page's strings when ``draw`` asks."""
+    from ..presentation.drawing.response import response_svg
+    from ..presentation.studies.sweep import sweep_display
+    result = sweep_answer(text, ask, settings)
+    draw = ask.get("draw")
+    if draw is not None:
+        size = {k: draw[k] for k in ("width", "height") if draw.get(k)}
+        result["svg"] = response_svg(result, magnitude=draw.get("magnitude") or "auto",
+                                     **size)
+        result["display"] = sweep_display(result)
+    if not ask.get("arrays", True):
+        result.pop("frequencies_hz")
+        for data in result["probes"].values():
+            for key in ("re", "im", "mag", "deg"):
+                data.pop(key)
+    return result
+
+
+def csv_answer(text: str, ask: dict, settings: Settings) -> str:
+    from ..presentation.studies.sweep import csv_text
+    return csv_text(sweep_answer(text, ask, settings))
+
+
 async def sweep(body: SweepBody, request: Request):
     """Frequency response of probes: ``frequencies_hz``, ``probes`` (re, im, mag, deg per
     point, null where undefined), ``resonances``, ``warnings``; 422 for bad input."""
-    ask = {"probes": body.probes, "start": body.start, "stop": body.stop,
-           "points": body.points, "spacing": body.spacing}
-    return await api.run_job(request, sweep_answer, body.netlist, ask)
+    return await api.run_job(request, drawn_sweep_answer, body.netlist, body.ask())
+
+
+async def sweep_csv(body: SweepBody, request: Request):
+    """The same sweep as ``text/csv`` (one row per frequency: magnitude, angle, re and im
+    of every probe), as an attachment; 422 in the JSON error shape for bad input."""
+    return await api.run_job(request, csv_answer, body.netlist, body.ask(),
+                             respond=_csv_response)
+
+
+def _csv_response(text: str) -> Response:
+    return Response(text, media_type="text/csv; charset=utf-8", headers={
+        "Content-Disposition": 'attachment; filename="frequency-response.csv"',
+        "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
