@@ -51,6 +51,9 @@ class Element:
     distribution: str | None = None
     frequency: float | None = None
     group: str | None = None
+    #: The named value the element's value is, when written as that bare name
+    #: (``Ccorr: capacitor c -> 0 Cpf``); the formula study gives both one symbol.
+    value_name: str | None = None
 
     @property
     def p(self) -> str:

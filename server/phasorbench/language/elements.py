@@ -138,6 +138,15 @@ class ElementReader:
         expect_unit(q, KIND_UNITS[kind], kind, span, self.line.text[span[0]:span[1]])
         return q.value, span
 
+    def bare_name(self, span) -> str | None:
+        """The named value a value is, when it is that one name (units aside)."""
+        words = [t for t in self.line.tokens if span[0] <= t.start and t.end <= span[1]]
+        names = [t.text for t in words if t.kind == "word" and t.text in self.parser.values]
+        if len(names) == 1 and (len(words) == 1 or (len(words) == 2 and words[0].text
+                                                    == names[0])):
+            return names[0]
+        return None
+
     # -- the line ----------------------------------------------------------------------
 
     def read_simple(self, line) -> bool:
@@ -222,6 +231,9 @@ class ElementReader:
                 element.sense_element = sense
         if "tol" in options:
             element.tolerance, element.distribution = options["tol"]
+        named = self.bare_name(span)
+        if named is not None and self.parser.values[named].value == element.value:
+            element.value_name = named
         self.circuit.elements[name] = element
 
     def check_passive_value(self, kind: str, value: complex, span) -> None:

@@ -1,0 +1,235 @@
+"""Exact formulas of probes in ``s`` (studies.md, "Formulas"), bounded in size and time.
+
+``run_formula(circuit, probe, keep, solve_for)`` checks its input here (the probe, the
+``keep`` names, the ``solve_for`` element, the size of the system), then does the sympy
+work (``symbolic.py``) in a worker process that is stopped at the time limit, and at
+last checks the formula numerically: evaluated with every symbol at its value from the
+text at s = j·2π·f, it must equal the numeric solve of the same probe.
+
+Symbols: one per element value, named as the element, except that elements written as
+one named value share that value's symbol (``Ccorr: capacitor c -> 0 Cpf`` gives
+``Cpf``); a coupling's symbol is its mutual inductance M. Sources with their own
+``freq`` are zeroed, as in the sweep (the formula is of the analysis-frequency network).
+
+This module imports no sympy: only the worker does (``phasorbench solve`` never pays).
+"""
+
+from __future__ import annotations
+
+import os
+import select
+import subprocess
+import sys
+import threading
+from pathlib import Path
+
+from ..errors import CircuitError, Diagnostic
+from ..model import Circuit
+from ..presentation.formatting import eng
+from .engine import sweep_response, zero_own_frequency_sources
+from .formula_worker import read_frame, write_frame
+from .probes import _close, parse_probes
+
+#: Largest system (unknowns) handed to the symbolic solve.
+MAX_UNKNOWNS = 40
+#: Most symbols kept at once.
+MAX_SYMBOLS = 24
+#: Largest formula (terms of the expanded numerator plus denominator).
+MAX_TERMS = 2000
+#: Seconds the symbolic work may take.
+TIME_LIMIT_S = 20.0
+#: The numeric check passes at this relative difference.
+CHECK_RTOL = 1e-9
+
+_FEWER = "keep fewer symbols, e.g. --keep R1 C1 (the others take their values from the text)"
+
+
+def symbol_table(circuit: Circuit) -> list[dict]:
+    """Every symbol the circuit offers: ``name``, ``kind``, the ``elements`` it stands
+    for and its value (``re``, ``im``) from the text."""
+    table: dict[str, dict] = {}
+    for e in circuit.elements.values():
+        name = e.value_name or e.name
+        entry = table.setdefault(name, {"name": name, "kind": e.kind, "elements": [],
+                                        "re": e.value.real, "im": e.value.imag,
+                                        "named_value": e.value_name is not None})
+        entry["elements"].append(e.name)
+    for c in circuit.couplings.values():
+        table[c.name] = {"name": c.name, "kind": "coupling", "elements": [c.name],
+                         "re": float(c.m), "im": 0.0, "named_value": False}
+    return list(table.values())
+
+
+def _unknowns(circuit: Circuit) -> int:
+    nodes = len(circuit.nodes()) - 1 - len(circuit.references)
+    branch = sum(e.kind in ("voltage", "vcvs", "ccvs", "transformer")
+                 for e in circuit.elements.values())
+    return nodes + branch + 2 * len(circuit.couplings)
+
+
+def _keep_names(keep, entries: list[dict], solve_for: str | None) -> tuple[list[str], list]:
+    """The kept symbol names, and a diagnostic per unknown name in ``keep``."""
+    by_element = {el: e["name"] for e in entries for el in e["elements"]}
+    names = [e["name"] for e in entries]
+    problems = []
+    if keep is None:
+        kept = list(names)
+    else:
+        kept = []
+        for word in keep:
+            if word in by_element:
+                kept.append(by_element[word])
+                continue
+            if word in names:
+                kept.append(word)
+                continue
+            close = _close(word, names + list(by_element))
+            hint = (f"did you mean '{close[0]}'?" if close else "symbols of this circuit: "
+                    + ", ".join(names[:12]) + (", …" if len(names) > 12 else ""))
+            if word == "s":
+                hint = "s (the complex frequency) is always kept"
+            problems.append(Diagnostic(f"--keep '{word}': not an element or named value "
+                                       "of this circuit", hint))
+    if solve_for is not None:
+        if solve_for not in by_element and solve_for not in names:
+            close = _close(solve_for, list(by_element))
+            problems.append(Diagnostic(
+                f"--solve-for '{solve_for}': not an element of this circuit",
+                f"did you mean '{close[0]}'?" if close else
+                "name an element of the probe's numerator"))
+        else:
+            kept.append(by_element.get(solve_for, solve_for))
+    return list(dict.fromkeys(kept)), problems
+
+
+def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | None = None,
+                time_limit: float = TIME_LIMIT_S, max_terms: int = MAX_TERMS) -> dict:
+    """The formula JSON of studies.md; ``CircuitError`` for any input problem or limit."""
+    circuit, zeroed = zero_own_frequency_sources(circuit)
+    probe = parse_probes([probe_text], circuit)[0]
+    entries = [e for e in symbol_table(circuit)
+               if not all(el in zeroed for el in e["elements"])]
+    kept, problems = _keep_names(keep, entries, solve_for)
+    if problems:
+        raise CircuitError(problems)
+    unknowns = _unknowns(circuit)
+    if unknowns > MAX_UNKNOWNS:
+        raise CircuitError([Diagnostic(
+            f"size limit: this circuit has {unknowns} unknowns, above the formula's limit "
+            f"of {MAX_UNKNOWNS}", "a formula of a network this large is unreadable; ask "
+            "for a smaller part of it, or use 'phasorbench sweep' for numbers")])
+    if len(kept) > MAX_SYMBOLS:
+        raise CircuitError([Diagnostic(
+            f"size limit: {len(kept)} symbols would stay symbolic, above the limit of "
+            f"{MAX_SYMBOLS}", _FEWER)])
+    symbol_of = {el: e["name"] for e in entries for el in e["elements"]}
+    answer = _in_worker(circuit, probe, entries, kept,
+                        symbol_of.get(solve_for, solve_for), time_limit, max_terms)
+    numeric = sweep_response(circuit, [probe], [circuit.frequency])
+    solved = complex(numeric.values[probe.text][0])
+    at_f = complex(answer["value_at_frequency"]["re"], answer["value_at_frequency"]["im"])
+    difference = abs(at_f - solved) / max(abs(solved), 1e-300)
+    warnings = [f"{name} has its own frequency and is zeroed: the formula is of the "
+                f"network at {eng(circuit.frequency, 'Hz')}" for name in zeroed]
+    check_ok = bool(difference <= CHECK_RTOL) or (at_f == solved)
+    if not check_ok:
+        warnings.append("the formula evaluated at the analysis frequency differs from the "
+                        f"numeric solve by {difference:.1e} (relative)")
+    if solve_for is not None and not answer["solve_for"]["single_value"]:
+        warnings.append(f"no single value of {solve_for} balances at every frequency: "
+                        "each power of s gives its own condition")
+    symbols = [dict(e, kept=e["name"] in kept) for e in entries]
+    return {
+        "probe": probe.text,
+        "unit": probe.unit,
+        "frequency_hz": circuit.frequency,
+        "symbols": symbols,
+        "kept": kept,
+        **{k: v for k, v in answer.items() if k != "value_at_frequency"},
+        "check": {"frequency_hz": circuit.frequency,
+                  "formula": answer["value_at_frequency"],
+                  "solved": {"re": solved.real, "im": solved.imag},
+                  "relative_difference": difference, "ok": check_ok},
+        "warnings": warnings,
+    }
+
+
+# -- the worker ---------------------------------------------------------------------
+
+
+class _Worker:
+    """One ``formula_worker`` process kept between jobs (sympy is imported once); it is
+    killed when a job passes the time limit and started again for the next."""
+
+    def __init__(self):
+        self.process = None
+
+    def start(self) -> None:
+        package_root = str(Path(__file__).resolve().parents[2])
+        env = dict(os.environ)
+        env["PYTHONPATH"] = os.pathsep.join(
+            [package_root] + ([env["PYTHONPATH"]] if env.get("PYTHONPATH") else []))
+        self.process = subprocess.Popen(
+            [sys.executable, "-m", "phasorbench.studies.formula_worker"],
+            stdin=subprocess.PIPE, stdout=subprocess.PIPE, env=env)
+        if self._receive(STARTUP_S) != "ready":
+            self.stop()
+            raise RuntimeError("the formula worker did not start")
+
+    def stop(self) -> None:
+        if self.process is not None:
+            self.process.kill()
+            self.process.wait()
+            for pipe in (self.process.stdin, self.process.stdout):
+                pipe.close()
+            self.process = None
+
+    def _receive(self, timeout: float):
+        ready, _, _ = select.select([self.process.stdout], [], [], timeout)
+        if not ready:
+            return _TIMED_OUT
+        answer = read_frame(self.process.stdout)
+        if answer is None:
+            raise RuntimeError("the formula worker stopped without an answer")
+        return answer
+
+    def run(self, job, timeout: float):
+        if self.process is None or self.process.poll() is not None:
+            self.start()
+        try:
+            write_frame(self.process.stdin, job)
+            answer = self._receive(timeout)
+        except (OSError, RuntimeError):
+            self.stop()
+            raise
+        if answer is _TIMED_OUT:
+            self.stop()
+        return answer
+
+
+_TIMED_OUT = object()
+#: Seconds the worker may take to start (importing sympy), not counted in the limit.
+STARTUP_S = 60.0
+_worker = _Worker()
+_lock = threading.Lock()
+
+
+def _in_worker(circuit, probe, entries, kept, solve_for, time_limit, max_terms) -> dict:
+    job = (circuit, probe, entries, kept, solve_for, max_terms)
+    with _lock:
+        answer = _worker.run(job, time_limit)
+    if answer is _TIMED_OUT:
+        raise CircuitError([Diagnostic(
+            f"time limit: the formula took longer than {time_limit:g} s and was "
+            "stopped", _FEWER)])
+    status, payload = answer
+    if status == "size":
+        terms, limit = payload
+        raise CircuitError([Diagnostic(
+            f"size limit: the formula has {terms:,} terms, above the limit of {limit:,}",
+            _FEWER)])
+    if status == "problem":
+        raise CircuitError([Diagnostic(*payload)])
+    if status != "ok":
+        raise RuntimeError(payload)
+    return payload
