@@ -364,3 +364,90 @@ def _run_in_child(plan: _Plan, timeout: float) -> dict[str, complex]:
     if status != "ok":
         raise RuntimeError(payload)
     return payload
+
+
+# --- symbolic formulas --------------------------------------------------------------
+
+
+def formula_with_lcapy(circuit: Circuit, query: tuple, timeout: float = SOLVE_TIMEOUT_S):
+    """lcapy's own symbolic answer (a sympy expression in ``s`` and the element names)
+    for the formula study's probes, every element value a symbol named as the element.
+
+    ``query`` is ``("transfer", (in_p, in_n), (out_p, out_n))`` — V(out)/V(in) with the
+    voltage source across the input pair driving (lcapy applies its own input there, so
+    that source is left out) — or ``("impedance", a, b)`` — Z(a, b) with every
+    independent source zeroed (voltage sources written as 0 V, current sources left out).
+    Covers resistors, capacitors, inductors, impedances, VCVS and VCCS.
+    """
+    lines = []
+    names = _Names()
+    driven = None
+    if query[0] == "transfer":
+        driven = tuple(query[1])
+    for element in circuit.elements.values():
+        kind = element.kind
+        p, n = element.nodes[0], element.nodes[1]
+        if kind == "voltage":
+            if driven is not None and {p, n} == set(driven):
+                continue
+            lines.append(f"{names.component('V')} {names.node(p)} {names.node(n)} 0")
+        elif kind == "current":
+            continue
+        elif kind in ("resistor", "capacitor", "inductor", "impedance"):
+            letter = _PASSIVE_LETTER[kind]
+            lines.append(f"{names.component(letter)} {names.node(p)} {names.node(n)} "
+                         f"{element.name}")
+        elif kind == "vcvs":
+            c, d = (names.node(x) for x in element.sense_nodes)
+            lines.append(f"{names.component('E')} {names.node(p)} {names.node(n)} {c} {d} "
+                         f"{element.name}")
+        elif kind == "vccs":          # lcapy pushes into its first node: nodes swapped
+            c, d = (names.node(x) for x in element.sense_nodes)
+            lines.append(f"{names.component('G')} {names.node(n)} {names.node(p)} {c} {d} "
+                         f"{element.name}")
+        else:
+            raise NotImplementedError(f"{element.name}: kind {kind!r} is not translated")
+    if circuit.couplings:
+        raise NotImplementedError("couplings are not translated for formulas")
+    if query[0] == "transfer":
+        ask = ("transfer", [names.node(x) for x in (*query[1], *query[2])])
+    else:
+        ask = ("impedance", [names.node(query[1]), names.node(query[2])])
+    load_lcapy()
+    context = multiprocessing.get_context("fork")
+    receiver, sender = context.Pipe(duplex=False)
+    child = context.Process(target=_formula_in_child, args=(lines, ask, sender), daemon=True)
+    child.start()
+    sender.close()
+    try:
+        if not receiver.poll(timeout):
+            raise TimeoutError(f"lcapy took longer than {timeout} s on:\n" + "\n".join(lines))
+        status, payload = receiver.recv()
+    except EOFError:
+        raise RuntimeError("the lcapy child process died without an answer") from None
+    finally:
+        receiver.close()
+        child.join(2.0)
+        if child.is_alive():
+            child.kill()
+            child.join()
+    if status != "ok":
+        raise RuntimeError(payload)
+    return payload
+
+
+def _formula_in_child(lines, ask, conn) -> None:
+    try:
+        lcapy = load_lcapy()
+        lcapy.rcParams["sympy.solver"] = "GE"       # see _solve_in_child
+        warnings.filterwarnings("ignore", message=r"\s*This may take a while", category=UserWarning)
+        cct = lcapy.Circuit()
+        for line in lines:
+            cct.add(line)
+        kind, nodes = ask
+        expr = cct.transfer(*nodes) if kind == "transfer" else cct.impedance(*nodes)
+        conn.send(("ok", expr.sympy))
+    except BaseException:
+        conn.send(("error", traceback.format_exc() + "\nlcapy lines:\n" + "\n".join(lines)))
+    finally:
+        conn.close()

@@ -72,3 +72,46 @@ def test_csv_route_gives_every_point(api):  # noqa: F811
     r = api.post("/api/sweep/csv", json={"netlist": RLC, "probes": ["I(R9)"]})
     # studies.md: bad probes answer 422 in the language's error shape
     assert r.status_code == 422 and "R9" in r.json()["errors"][0]["message"]
+
+
+BRIDGE = """frequency 50 Hz
+V1: voltage top -> 0 10 V
+R1: resistor top -> l 1k
+R2: resistor l -> 0 2k
+R3: resistor top -> r 1.5k
+R4: resistor r -> 0 3.1k
+"""
+
+
+def test_formula_answers_the_study_json_with_display(api):  # noqa: F811
+    r = api.post("/api/formula", json={"netlist": BRIDGE, "probe": "V(l, r)/V(top)",
+                                       "solve_for": "R4"})
+    assert r.status_code == 200
+    body = r.json()
+    (condition,) = body["solve_for"]["conditions"]
+    # Wheatstone balance R1·R4 = R2·R3 (textbook; from memory)
+    assert condition["solutions"][0]["text"] == "R4 = R2*R3/R1"
+    assert body["display"]["mathml"] == body["formula"]["mathml"]
+    assert body["check"]["ok"]
+
+
+def test_formula_bad_input_answers_422_with_every_error(api):  # noqa: F811
+    r = api.post("/api/formula", json={"netlist": BRIDGE, "probe": "V(l, rr)",
+                                       "keep": ["R7"], "solve_for": "R9"})
+    # studies.md: HTTP 422, all problems in one pass, the column inside the probe
+    assert r.status_code == 422
+    errors = r.json()["errors"]
+    assert len(errors) == 3
+    (probe,) = [e for e in errors if e["column"] is not None]
+    assert probe["column"] == 6 and "did you mean 'r'" in probe["hint"]
+
+
+def test_formula_time_limit_is_a_422_that_says_so(api):  # noqa: F811
+    ladder = "frequency 50 Hz\nV1: voltage n0 -> 0 1 V\n" + "".join(
+        f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\nC{k}: capacitor n{k + 1} -> 0 1 uF\n"
+        f"L{k}: inductor n{k + 1} -> 0 1 mH\nR{k}b: resistor n{k + 1} -> n0 3 ohm\n"
+        for k in range(9))
+    r = api.post("/api/formula", json={"netlist": ladder, "probe": "Z(n3, n8)"})
+    # common practice, no source: a bounded server says which limit it hit
+    assert r.status_code == 422
+    assert r.json()["errors"][0]["message"].startswith(("time limit", "size limit"))

@@ -16,6 +16,9 @@ This module imports no sympy: only the worker does (``phasorbench solve`` never 
 
 from __future__ import annotations
 
+import atexit
+import cmath
+import math
 import os
 import select
 import subprocess
@@ -28,7 +31,8 @@ from ..model import Circuit
 from ..presentation.formatting import eng
 from .engine import sweep_response, zero_own_frequency_sources
 from .formula_worker import read_frame, write_frame
-from .probes import _close, parse_probes
+from ..solver import solve
+from .probes import Current, Impedance, _close, parse_probes
 
 #: Largest system (unknowns) handed to the symbolic solve.
 MAX_UNKNOWNS = 40
@@ -106,10 +110,15 @@ def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | N
                 time_limit: float = TIME_LIMIT_S, max_terms: int = MAX_TERMS) -> dict:
     """The formula JSON of studies.md; ``CircuitError`` for any input problem or limit."""
     circuit, zeroed = zero_own_frequency_sources(circuit)
-    probe = parse_probes([probe_text], circuit)[0]
+    problems = []
+    try:
+        probe = parse_probes([probe_text], circuit)[0]
+    except CircuitError as exc:           # reported with the other options' problems
+        problems.extend(exc.diagnostics)
     entries = [e for e in symbol_table(circuit)
                if not all(el in zeroed for el in e["elements"])]
-    kept, problems = _keep_names(keep, entries, solve_for)
+    kept, wrong = _keep_names(keep, entries, solve_for)
+    problems.extend(wrong)
     if problems:
         raise CircuitError(problems)
     unknowns = _unknowns(circuit)
@@ -125,16 +134,19 @@ def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | N
     symbol_of = {el: e["name"] for e in entries for el in e["elements"]}
     answer = _in_worker(circuit, probe, entries, kept,
                         symbol_of.get(solve_for, solve_for), time_limit, max_terms)
-    numeric = sweep_response(circuit, [probe], [circuit.frequency])
-    solved = complex(numeric.values[probe.text][0])
+    solved = _solved_value(circuit, probe)
     at_f = complex(answer["value_at_frequency"]["re"], answer["value_at_frequency"]["im"])
     difference = abs(at_f - solved) / max(abs(solved), 1e-300)
+    if not math.isfinite(difference):
+        difference = None
     warnings = [f"{name} has its own frequency and is zeroed: the formula is of the "
                 f"network at {eng(circuit.frequency, 'Hz')}" for name in zeroed]
-    check_ok = bool(difference <= CHECK_RTOL) or (at_f == solved)
+    check_ok = difference is not None and (difference <= CHECK_RTOL or at_f == solved)
     if not check_ok:
         warnings.append("the formula evaluated at the analysis frequency differs from the "
-                        f"numeric solve by {difference:.1e} (relative)")
+                        "numeric solve" + (f" by {difference:.1e} (relative)"
+                                           if difference is not None else
+                                           " (the solve has no value there)"))
     if solve_for is not None and not answer["solve_for"]["single_value"]:
         warnings.append(f"no single value of {solve_for} balances at every frequency: "
                         "each power of s gives its own condition")
@@ -148,10 +160,32 @@ def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | N
         **{k: v for k, v in answer.items() if k != "value_at_frequency"},
         "check": {"frequency_hz": circuit.frequency,
                   "formula": answer["value_at_frequency"],
-                  "solved": {"re": solved.real, "im": solved.imag},
+                  "solved": ({"re": solved.real, "im": solved.imag}
+                             if cmath.isfinite(solved) else None),
                   "relative_difference": difference, "ok": check_ok},
         "warnings": warnings,
     }
+
+
+def _solved_value(circuit: Circuit, probe) -> complex:
+    """The probe from the numeric solve at the analysis frequency: the solver's own
+    (refined) solution for voltages and currents, the engine's test-current solve for
+    ``Z`` probes."""
+    if any(isinstance(part, Impedance) for part in probe.parts()):
+        numeric = sweep_response(circuit, [probe], [circuit.frequency])
+        return complex(numeric.values[probe.text][0])
+    solution = solve(circuit)
+    position = {name: k for k, name in enumerate(solution.names)}
+
+    def one(part):
+        if isinstance(part, Current):
+            return complex(solution.current[position[part.element.name]])
+        b = solution.node_voltages[part.b.node] if part.b is not None else 0j
+        return complex(solution.node_voltages[part.a.node]) - complex(b)
+    values = [one(part) for part in probe.parts()]
+    if len(values) == 1:
+        return values[0]
+    return values[0] / values[1] if values[1] != 0 else complex("nan")
 
 
 # -- the worker ---------------------------------------------------------------------
@@ -199,9 +233,9 @@ class _Worker:
         try:
             write_frame(self.process.stdin, job)
             answer = self._receive(timeout)
-        except (OSError, RuntimeError):
+        except (OSError, RuntimeError):      # the worker died on the job (memory)
             self.stop()
-            raise
+            return ("stopped", None)
         if answer is _TIMED_OUT:
             self.stop()
         return answer
@@ -212,6 +246,7 @@ _TIMED_OUT = object()
 STARTUP_S = 60.0
 _worker = _Worker()
 _lock = threading.Lock()
+atexit.register(_worker.stop)           # the worker ends with its parent, pipes closed
 
 
 def _in_worker(circuit, probe, entries, kept, solve_for, time_limit, max_terms) -> dict:
@@ -228,6 +263,14 @@ def _in_worker(circuit, probe, entries, kept, solve_for, time_limit, max_terms) 
         raise CircuitError([Diagnostic(
             f"size limit: the formula has {terms:,} terms, above the limit of {limit:,}",
             _FEWER)])
+    if status == "memory":
+        raise CircuitError([Diagnostic(
+            f"size limit: the formula needed more than {payload // 2**20:,} MB and was "
+            "stopped", _FEWER)])
+    if status == "stopped":
+        raise CircuitError([Diagnostic(
+            "size limit: the formula's worker process stopped before it answered (most "
+            "likely out of memory)", _FEWER)])
     if status == "problem":
         raise CircuitError([Diagnostic(*payload)])
     if status != "ok":

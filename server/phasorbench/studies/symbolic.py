@@ -10,8 +10,8 @@ fractions as ``c·x = -det([[A, b], [c, 0]]) / det(A)`` with every row first sca
 polynomials, the determinants taken by sympy's fraction-free elimination over the
 polynomial ring. A ratio of two probes on the same matrix needs no ``det(A)`` at all.
 
-Imported only by the worker process of ``formula.py`` (and by tests): ``phasorbench
-solve`` never pays for sympy.
+Imported only by the worker process of ``formula.py`` (through ``symbolic_result.py``)
+and by tests: ``phasorbench solve`` never pays for sympy.
 """
 
 from __future__ import annotations
@@ -20,15 +20,15 @@ from fractions import Fraction
 
 import sympy as sp
 from sympy.polys.matrices import DomainMatrix
-from sympy.printing.mathml import MathMLPresentationPrinter
-from sympy.printing.str import StrPrinter
 
 from ..model import GROUND, Circuit
 from .probes import Current, Impedance, Probe, Voltage
 
 #: The complex frequency (s = jω).
 S = sp.Symbol("s")
-MATHML_NS = "http://www.w3.org/1998/Math/MathML"
+#: Significant digits of a value taken as exact: the text's own digits, without the
+#: binary round-off of evaluating it (100 nF evaluates to 1.0000000000000001e-07).
+EXACT_DIGITS = 15
 
 
 class FormulaTooLarge(Exception):
@@ -48,8 +48,9 @@ class FormulaProblem(Exception):
 
 
 def exact(x: float) -> sp.Rational:
-    """The exact rational of a float's shortest repr: 4700.0 → 4700, 1.5e-07 → 3/20000000."""
-    f = Fraction(repr(float(x)))
+    """The exact rational of a value as written: 4700.0 → 4700, 1.0000000000000001e-07
+    (100 nF) → 1/10000000; the float rounded to ``EXACT_DIGITS`` significant digits."""
+    f = Fraction(format(float(x), f".{EXACT_DIGITS}g"))
     return sp.Rational(f.numerator, f.denominator)
 
 
@@ -67,7 +68,7 @@ def make_symbols(entries: list[dict]) -> dict[str, sp.Symbol]:
     out = {}
     for entry in entries:
         name = entry["name"]
-        printed = name + "_" if name == "s" else name
+        printed = name + "_" if name in ("s", "j") else name
         if entry["kind"] in _POSITIVE:
             out[name] = sp.Symbol(printed, positive=True)
         elif entry["kind"] in ("coupling", "transformer"):
@@ -319,182 +320,5 @@ def readable(numerator: sp.Expr, denominator: sp.Expr) -> tuple[sp.Expr, sp.Expr
     return num, den
 
 
-def in_powers_of_s(poly: sp.Expr) -> sp.Expr:
-    """``poly`` as a sum over descending powers of s, each coefficient factored
-    (an unevaluated sum: printing keeps this order)."""
-    poly = sp.expand(poly)
-    if not poly.has(S):
-        return sp.factor(poly)
-    terms = sp.collect(poly, S, evaluate=False)
-    ordered = sorted(terms.items(), key=lambda kv: -sp.degree(kv[0], S))
-    out = [sp.Mul(sp.factor(coef), power) for power, coef in ordered]
-    return out[0] if len(out) == 1 else sp.Add(*out, evaluate=False)
-
-
 def count_terms(expr: sp.Expr) -> int:
     return len(sp.Add.make_args(sp.expand(expr)))
-
-
-# -- printing -----------------------------------------------------------------------
-
-
-class _Text(StrPrinter):
-    def _print_ImaginaryUnit(self, expr):
-        return "j"
-
-
-class _MathML(MathMLPresentationPrinter):
-    def _print_ImaginaryUnit(self, expr):
-        x = self.dom.createElement("mi")
-        x.appendChild(self.dom.createTextNode("j"))
-        return x
-
-
-def text_of(expr) -> str:
-    return _Text({"order": "none"}).doprint(expr)
-
-
-def latex_of(expr) -> str:
-    return sp.latex(expr, order="none", imaginary_unit="j")
-
-
-def mathml_of(expr) -> str:
-    return _MathML({"order": "none"}).doprint(expr)
-
-
-def math_block(inner: str) -> str:
-    return f'<math xmlns="{MATHML_NS}" display="block">{inner}</math>'
-
-
-def fraction_forms(lhs: str, num: sp.Expr, den: sp.Expr) -> dict:
-    """Text, LaTeX and MathML of ``lhs = num/den`` (``den`` 1: no fraction)."""
-    n, d = in_powers_of_s(num), in_powers_of_s(den)
-    lhs_ml = f"<mi>{_escape(lhs)}</mi>"
-    if den == 1:
-        return {"text": f"{lhs} = {text_of(n)}", "latex": f"{_latex_lhs(lhs)} = {latex_of(n)}",
-                "mathml": math_block(f"<mrow>{lhs_ml}<mo>=</mo>{mathml_of(n)}</mrow>")}
-    return {"text": f"{lhs} = ({text_of(n)}) / ({text_of(d)})",
-            "latex": f"{_latex_lhs(lhs)} = \\frac{{{latex_of(n)}}}{{{latex_of(d)}}}",
-            "mathml": math_block(f"<mrow>{lhs_ml}<mo>=</mo><mfrac>{mathml_of(n)}"
-                                 f"{mathml_of(d)}</mfrac></mrow>")}
-
-
-def equation_forms(lhs: sp.Expr, rhs: sp.Expr) -> dict:
-    return {"text": f"{text_of(lhs)} = {text_of(rhs)}",
-            "latex": f"{latex_of(lhs)} = {latex_of(rhs)}",
-            "mathml": math_block(f"<mrow>{mathml_of(lhs)}<mo>=</mo>{mathml_of(rhs)}</mrow>")}
-
-
-def _escape(text: str) -> str:
-    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
-
-
-def _latex_lhs(text: str) -> str:
-    return "\\mathrm{" + text.replace("_", "\\_").replace(" ", "\\,") + "}"
-
-
-# -- the whole study (run in the worker) ----------------------------------------------
-
-
-def formula_result(circuit: Circuit, probe: Probe, entries: list[dict], kept: list[str],
-                   solve_for: str | None, max_terms: int) -> dict:
-    """The sympy part of ``formula.run_formula``: forms, poles, zeros, the value at the
-    analysis frequency and the balance conditions, all JSON-ready."""
-    import numpy as np
-
-    symbols = make_symbols([e for e in entries if e["name"] in kept])
-    exact_values = {e["name"]: exact_complex(complex(e["re"], e["im"])) for e in entries}
-    values = {}
-    for entry in entries:
-        for owner in entry["elements"]:
-            values[owner] = symbols.get(entry["name"], exact_values[entry["name"]])
-    for name, e in circuit.elements.items():        # zeroed own-frequency sources
-        values.setdefault(name, exact_complex(e.value))
-    mna = SymbolicMNA(circuit, values, probe)
-    numerator, denominator = probe_fraction(mna, probe)
-    num, den = readable(numerator, denominator)
-    terms = count_terms(num) + count_terms(den)
-    if terms > max_terms:
-        raise FormulaTooLarge(terms, max_terms)
-
-    everything = {symbols[name]: exact_values[name] for name in symbols}
-    num_at = sp.expand(num.xreplace(everything))
-    den_at = sp.expand(den.xreplace(everything))
-    if den_at == 0:
-        raise FormulaProblem("the probe's denominator is zero at the circuit's values",
-                             "the formula is undefined there; keep the elements that "
-                             "make it vanish symbolic to see why")
-    reduced = sp.cancel(num_at / den_at)
-    n_at, d_at = sp.fraction(reduced)
-    omega = 2 * sp.pi * exact(circuit.frequency)
-    at_f = complex(sp.N(reduced.xreplace({S: sp.I * omega}), 30))
-
-    out = {
-        "formula": fraction_forms(probe.text, num, den),
-        "numerator": _poly_forms(num),
-        "denominator": _poly_forms(den),
-        "terms": terms,
-        "zeros": _roots(n_at, np),
-        "poles": _roots(d_at, np),
-        "value_at_frequency": {"re": at_f.real, "im": at_f.imag},
-    }
-    if solve_for is not None:
-        out["solve_for"] = _balance(num, symbols[solve_for], solve_for, everything)
-    return out
-
-
-def _poly_forms(poly: sp.Expr) -> dict:
-    shown = in_powers_of_s(poly)
-    degree = int(sp.degree(poly, S)) if poly.has(S) else 0
-    return {"text": text_of(shown), "latex": latex_of(shown),
-            "mathml": math_block(mathml_of(shown)), "degree_in_s": degree}
-
-
-def _roots(poly: sp.Expr, np) -> list[dict]:
-    """Numeric roots in s (rad/s) of a polynomial with exact numeric coefficients."""
-    if not poly.has(S):
-        return []
-    coefficients = [complex(sp.N(c, 30)) for c in sp.Poly(poly, S).all_coeffs()]
-    roots = np.roots(np.array(coefficients, dtype=complex))
-    out = []
-    for r in sorted(roots.tolist(), key=lambda z: (abs(z), z.imag)):
-        magnitude = abs(r)
-        out.append({"re": r.real, "im": r.imag, "magnitude_rad_s": magnitude,
-                    "frequency_hz": magnitude / (2 * 3.141592653589793),
-                    "damping": (-r.real / magnitude) if magnitude else None})
-    return out
-
-
-def _balance(num: sp.Expr, symbol: sp.Symbol, name: str, everything: dict) -> dict:
-    """Solutions of "numerator = 0" for ``symbol``: one condition per power of s (a
-    balance that holds at every frequency needs each to vanish)."""
-    if symbol not in num.free_symbols:
-        raise FormulaProblem(f"'{name}' does not appear in the numerator, so no value of "
-                             "it makes the probe zero",
-                             "solve for an element of the numerator: " +
-                             (", ".join(sorted(str(x) for x in num.free_symbols - {S}))
-                              or "the numerator holds no symbol"))
-    coefficients = (sp.Poly(num, S).all_coeffs()[::-1] if num.has(S) else [num])
-    conditions, solutions = [], []
-    for power, coefficient in enumerate(coefficients):
-        coefficient = sp.expand(coefficient)
-        if coefficient == 0:
-            continue
-        _, factors = sp.factor_list(coefficient)
-        kept = [f ** m for f, m in factors if f.free_symbols & {symbol}] or \
-            [f ** m for f, m in factors if f.free_symbols]
-        condition = sp.Mul(*kept) if kept else coefficient
-        item = {"power_of_s": power, "equation": equation_forms(condition, sp.Integer(0)),
-                "solutions": []}
-        if symbol in condition.free_symbols:
-            for root in sp.solve(condition, symbol):
-                value = complex(sp.N(root.xreplace(everything), 30))
-                forms = equation_forms(symbol, root)
-                forms["value"] = {"re": value.real, "im": value.imag}
-                item["solutions"].append(forms)
-                if all(sp.simplify(root - other) != 0 for other in solutions):
-                    solutions.append(root)
-        conditions.append(item)
-    return {"element": name, "symbol": str(symbol), "conditions": conditions,
-            "single_value": len(solutions) == 1,
-            "equation": equation_forms(in_powers_of_s(num), sp.Integer(0))}

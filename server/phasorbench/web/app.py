@@ -63,6 +63,8 @@ def _routes(settings: Settings) -> list:
         APIRoute("/api/tolerance/jobs/{job_id}", tolerance_routes.cancel_job,
                  methods=["DELETE"], summary="Cancel a tolerance study",
                  response_class=StrictJSONResponse),
+        post("/api/formula", study_routes.formula,
+             "A probe as an exact formula in s, with poles, zeros and balance conditions"),
         *sheet_routes.router.routes,          # POST /api/sheet: the solved sheet download
         APIRoute("/api/samples", api.samples, methods=["GET"], summary="List the sample circuits",
                  response_class=StrictJSONResponse),

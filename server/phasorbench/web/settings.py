@@ -28,6 +28,9 @@ MAX_PICTURE_PX = 2400
 #: Solves run in worker threads so one heavy circuit never freezes the event loop;
 #: two cores here, so a few workers keep the page responsive without thrashing.
 SOLVE_WORKERS = 4
+#: Seconds one formula request's symbolic work may take before its worker process is
+#: stopped (a symbolic solve can grow without bound; the error says to keep fewer symbols).
+FORMULA_SECONDS = 10.0
 #: Names under which the server is always reachable from this machine itself.
 LOOPBACK_NAMES = ("127.0.0.1", "localhost", "::1")
 #: Bind addresses that mean "every interface" (then the Host check needs names given
@@ -55,6 +58,8 @@ class Settings:
         Largest request body read; a larger one is answered 413.
     max_elements
         Largest circuit solved; a larger one is answered 422 with a message.
+    formula_seconds
+        Time limit of one formula's symbolic work; past it, 422 saying so.
     allowed_hosts
         Extra host names accepted in the Host header (for example a machine name
         when serving on every interface).
@@ -69,6 +74,7 @@ class Settings:
     max_elements: int = MAX_ELEMENTS
     max_view_elements: int = MAX_VIEW_ELEMENTS
     solve_workers: int = SOLVE_WORKERS
+    formula_seconds: float = FORMULA_SECONDS
     allowed_hosts: tuple[str, ...] = ()
     initial_sample: str | None = None
     static_dir: Path = field(default_factory=lambda: _folder("PHASORBENCH_STATIC", _REPO_ROOT / "static"))

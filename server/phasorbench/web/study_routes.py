@@ -1,6 +1,6 @@
 """The studies' routes (thin handlers and their request models): ``POST /api/sweep``
 (the sweep JSON; with ``draw``, also the response picture and the page's strings) and
-``POST /api/sweep/csv`` (the same sweep as a CSV download).
+``POST /api/sweep/csv`` (the same sweep as a CSV download), ``POST /api/formula`` (an exact formula).
 
 Bad probes and ranges answer 422 in the language's error shape (``api.run_job``); the
 work of one sweep is bounded by points × unknowns (``MAX_SWEEP_WORK``), said in the error.
@@ -115,3 +115,34 @@ def _csv_response(text: str) -> Response:
     return Response(text, media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": 'attachment; filename="frequency-response.csv"',
         "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
+
+
+class FormulaBody(api.CircuitBody):
+    """A circuit text, one probe, and optionally the symbols to keep and an element to
+    solve the balance condition for."""
+
+    probe: str = Field(description="V(n), V(a, b), I(E), Z(a, b), Z(n) or a ratio X/Y")
+    keep: list[str] | None = Field(
+        None, description="elements or named values that stay symbols (default: all); the "
+                          "others take their exact values from the text")
+    solve_for: str | None = Field(
+        None, description="an element: solve 'numerator = 0' for it (a balance condition)")
+
+
+def formula_answer(text: str, ask: dict, settings: Settings) -> dict:
+    """The formula JSON of studies.md plus ``display`` (the page's and the sheet's rows)."""
+    from ..presentation.studies.formula import formula_display
+    from ..studies.formula import run_formula
+    circuit = _read(text, settings)
+    result = run_formula(circuit, ask["probe"], ask.get("keep"), ask.get("solve_for"),
+                         time_limit=settings.formula_seconds)
+    return dict(result, display=formula_display(result))
+
+
+async def formula(body: FormulaBody, request: Request):
+    """A probe as an exact formula in s: ``formula`` (text, LaTeX, MathML), numerator and
+    denominator, ``poles``, ``zeros``, ``solve_for`` (balance conditions), ``check``
+    against the numeric solve, ``display``; 422 for bad input or past the size or time
+    limit (the error says which)."""
+    ask = {"probe": body.probe, "keep": body.keep, "solve_for": body.solve_for}
+    return await api.run_job(request, formula_answer, body.netlist, ask)

@@ -1,0 +1,1 @@
+"""Strings and rows of the studies, shown by the page and the sheet alike."""

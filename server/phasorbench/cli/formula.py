@@ -1,0 +1,50 @@
+"""``phasorbench formula``: a probe as an exact expression in s (studies.md, "Formulas")."""
+
+from __future__ import annotations
+
+import sys
+
+from ..errors import CircuitError
+from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source
+from .sweep import _print_probe_diagnostics
+
+__all__ = ["add_formula_command", "command_formula"]
+
+
+def add_formula_command(commands) -> None:
+    formula = commands.add_parser(
+        "formula", help="a probe as an exact formula in s, with poles, zeros and balance")
+    formula.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
+    formula.add_argument("--probe", required=True, metavar="P",
+                         help="V(n), V(a, b), I(E), Z(a, b), Z(n) or a ratio X/Y")
+    formula.add_argument("--keep", nargs="+", action="extend", metavar="NAME",
+                         help="the elements or named values that stay symbols (default: "
+                              "all); the others take their values from the text")
+    formula.add_argument("--solve-for", metavar="NAME",
+                         help="solve 'numerator = 0' for this element (a balance condition)")
+    formula.add_argument("--json", action="store_true",
+                         help="the study's JSON (text, LaTeX and MathML of each formula)")
+    formula.add_argument("-o", dest="output", metavar="OUT", help="write to OUT, not stdout")
+    formula.set_defaults(run=command_formula)
+
+
+def command_formula(args) -> int:
+    from ..presentation.studies.formula import summary_text
+    from ..studies.formula import run_formula
+    from ..workflow import read_circuit
+    text, name = load_source(args)
+    circuit = read_circuit(text, name)
+    try:
+        result = run_formula(circuit, args.probe, args.keep, args.solve_for)
+    except CircuitError as exc:
+        _print_probe_diagnostics(exc.diagnostics, name, text)
+        return EXIT_INPUT
+    body = dump_json(result) + "\n" if args.json else summary_text(result)
+    if args.output:
+        with open(args.output, "w", encoding="utf-8", newline="") as handle:
+            handle.write(body)
+    else:
+        sys.stdout.write(body)
+    for warning in result["warnings"]:
+        print(f"{name}: warning: {warning}", file=sys.stderr)
+    return EXIT_OK
