@@ -38,6 +38,8 @@ export const postThreePhase = (netlist, group, size, signal) =>
   postJSON("/api/three-phase", {netlist, group, ...size}, signal);
 /** `ask`: {source, target, leading, at | across, bank, rated_voltage} (see /docs). */
 export const postCorrect = (netlist, ask, signal) => postJSON("/api/correct", {netlist, ...ask}, signal);
+/** `ask`: {probe, keep, solve_for} (see /docs). */
+export const postFormula = (netlist, ask, signal) => postJSON("/api/formula", {netlist, ...ask}, signal);
 export const postPort = (netlist, a, b, signal) => postJSON("/api/port", {netlist, a, b}, signal);
 
 /** The tolerance study as a job: start it, poll it, cancel it (see /docs). */

@@ -15,6 +15,7 @@ import {markSelected, renderBranchTable, renderNodeTable} from "./tables.js";
 import {createSweep} from "./sweep.js";
 import {createThreePhase} from "./threephase.js";
 import {createTolerance} from "./tolerance.js";
+import {createFormula} from "./formula.js";
 import {createTabs, savedTool} from "./tools.js";
 import {clearViews, renderPicker, showPhasors, showWaveform} from "./views.js";
 
@@ -391,6 +392,7 @@ function setupTools() {
     port: createPort({getSolved: solvedText}),
     tolerance: createTolerance({getSolved: solvedText}),
     sweep: createSweep({getSolved: solvedText}),
+    formula: createFormula({getSolved: solvedText}),
     tabs: createTabs($("tool-tabs"), {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),
@@ -418,6 +420,7 @@ async function exportCurrentSheet() {
       port: tools.port.sheetRequest(text),
       tolerance: tools.tolerance.sheetRequest(text),
       sweep: tools.sweep.sheetRequest(text),
+      formula: tools.formula.sheetRequest(text),
     });
     if (!result.ok) {
       const data = result.data || {};

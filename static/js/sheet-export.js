@@ -54,6 +54,7 @@ export async function exportSheet(netlist, elements, tools = {}) {
   if (tools.port) body.port = tools.port;
   if (tools.tolerance) body.tolerance = tools.tolerance;
   if (tools.sweep) body.sweep = tools.sweep;
+  if (tools.formula) body.formula = tools.formula;
   let response;
   try {
     response = await fetch("/api/sheet", {

@@ -43,6 +43,12 @@ def add_sheet_command(commands) -> None:
                             "phasorbench tolerance)")
     sheet.add_argument("--tolerance-limit", action="append", metavar='"P MIN..MAX"',
                        dest="tol_limits", help="a limit of the tolerance study (repeatable)")
+    sheet.add_argument("--formula", metavar="P", dest="formula_probe",
+                       help="add the exact formula of probe P (the study of phasorbench formula)")
+    sheet.add_argument("--keep", nargs="+", action="extend", metavar="NAME",
+                       dest="formula_keep", help="symbols the formula keeps (default: all)")
+    sheet.add_argument("--solve-for", metavar="NAME", dest="formula_solve_for",
+                       help="solve the formula's numerator = 0 for this element")
     sheet.add_argument("--runs", type=int, metavar="N", help="runs of the tolerance study")
     sheet.add_argument("--seed", type=int, metavar="S", help="seed of the tolerance study")
     sheet.add_argument("--worst-case", action="store_true",
@@ -70,6 +76,7 @@ def _write(path: str, html: str) -> None:
 def command_sheet(args) -> int:
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
+    from ..sheet.formula import formula_section
     from ..sheet.tolerance import tolerance_section
     from ..workflow import solve_text
     text, name = load_source(args)
@@ -87,10 +94,18 @@ def command_sheet(args) -> int:
         from .tolerance import print_study_diagnostics
         print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
+    formula_ask = ({"probe": args.formula_probe, "keep": args.formula_keep,
+                    "solve_for": args.formula_solve_for} if args.formula_probe else None)
+    try:
+        formula = formula_section(text, name, formula_ask)
+    except CircuitError as exc:
+        from .sweep import _print_probe_diagnostics
+        _print_probe_diagnostics(exc.diagnostics, name, text)
+        return EXIT_INPUT
     html = render_context(sheet_context(text, name, result=result,
                                         waveform_elements=args.elements,
                                         phasor_elements=args.elements, **tools,
-                                        tolerance=tolerance))
+                                        tolerance=tolerance, formula=formula))
     if args.output == "-":
         sys.stdout.write(html)
         sys.stdout.flush()

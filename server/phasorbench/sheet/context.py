@@ -206,7 +206,7 @@ def _waveform_view(result: dict, names) -> dict:
 def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None = None,
                   now: datetime | None = None, waveform_elements=None, phasor_elements=None,
                   correction: dict | None = None, port: dict | None = None,
-                  tolerance: dict | None = None) -> dict:
+                  tolerance: dict | None = None, formula: dict | None = None) -> dict:
     """Everything the sheet shows, for ``templates/sheet.html``.
 
     Parameters
@@ -227,6 +227,8 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         Results of the power tools, shown as optional sections.
     tolerance : dict, optional
         The tolerance section (``sheet/tolerance.py``), shown when given.
+    formula : dict, optional
+        The formula section (``sheet/formula.py``), shown when given.
 
     Returns
     -------
@@ -273,4 +275,5 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         "correction": tool_section(correction, "correction", known),
         "port": tool_section(port, "port", known),
         "tolerance": tolerance,
+        "formula": formula,
     }

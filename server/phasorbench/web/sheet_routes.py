@@ -22,6 +22,7 @@ from .api import INTERNAL_ERROR, CircuitBody, CorrectionAsk, PortAsk, error_resp
 from .jsonsafe import StrictJSONResponse
 from .limits import check_size
 from .settings import Settings
+from .study_routes import FormulaAsk
 from .tolerance_routes import ToleranceAsk, check_work
 
 __all__ = ["CorrectionAsk", "PortAsk", "SheetBody", "router", "sheet_answer"]
@@ -44,6 +45,8 @@ class SheetBody(CircuitBody):
                                                    "seen from two nodes")
     tolerance: ToleranceAsk | None = Field(
         None, description="add a tolerance study, as the page's tolerance tab asks for it")
+    formula: FormulaAsk | None = Field(
+        None, description="add a formula of a probe, as the page's formula tab asks for it")
 
 
 def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
@@ -51,6 +54,7 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     from .. import workflow
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
+    from ..sheet.formula import formula_section
     from ..sheet.tolerance import tolerance_section
 
     text, name = body.netlist, answers.PAGE_FILENAME
@@ -65,7 +69,10 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
                             phasor_elements=body.elements, **tools,
                             tolerance=tolerance_section(
                                 text, name, body.tolerance.model_dump()
-                                if body.tolerance else None))
+                                if body.tolerance else None),
+                            formula=formula_section(
+                                text, name, body.formula.model_dump()
+                                if body.formula else None))
     return render_context(context), context["filename"]
 
 

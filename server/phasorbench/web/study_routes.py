@@ -117,9 +117,9 @@ def _csv_response(text: str) -> Response:
         "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
 
 
-class FormulaBody(api.CircuitBody):
-    """A circuit text, one probe, and optionally the symbols to keep and an element to
-    solve the balance condition for."""
+class FormulaAsk(BaseModel):
+    """A formula to derive: the fields of ``POST /api/formula`` after the circuit (the
+    sheet asks for one in the same words)."""
 
     probe: str = Field(description="V(n), V(a, b), I(E), Z(a, b), Z(n) or a ratio X/Y")
     keep: list[str] | None = Field(
@@ -127,6 +127,11 @@ class FormulaBody(api.CircuitBody):
                           "others take their exact values from the text")
     solve_for: str | None = Field(
         None, description="an element: solve 'numerator = 0' for it (a balance condition)")
+
+
+class FormulaBody(api.CircuitBody, FormulaAsk):
+    """A circuit text, one probe, and optionally the symbols to keep and an element to
+    solve the balance condition for."""
 
 
 def formula_answer(text: str, ask: dict, settings: Settings) -> dict:

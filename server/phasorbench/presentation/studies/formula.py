@@ -62,8 +62,9 @@ def formula_display(result: dict) -> dict:
     f = fmt.eng(check["frequency_hz"], "Hz")
     unit = result["unit"]
     difference = check["relative_difference"]
-    check_text = (f"At {f} the formula gives {fmt.rect(check['formula'], unit)}; the numeric "
-                  f"solve gives {fmt.rect(check['solved'], unit)} (relative difference "
+    solved = _number(check["solved"], unit) if check["solved"] else fmt.MISSING
+    check_text = (f"At {f} the formula gives {_number(check['formula'], unit)}; the numeric "
+                  f"solve gives {solved} (relative difference "
                   + (f"{difference:.1e}" if difference is not None else fmt.MISSING) + "): "
                   + ("they agree." if check["ok"] else "they DIFFER."))
     balance = None
