@@ -58,6 +58,7 @@ def test_bridge_formula_and_its_balance(new_page, formula_server, artifacts):
     box = page.locator("#formula-out .formula-main math").bounding_box()
     assert box["height"] > 30
     page.screenshot(path=str(artifacts / "formula-tab.png"), full_page=True)
+    page.locator("#tool-formula").screenshot(path=str(artifacts / "formula-tab-panel.png"))
 
 
 def test_bad_probe_shows_the_problem(new_page, formula_server, artifacts):
