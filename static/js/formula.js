@@ -38,6 +38,14 @@ function render(d) {
   const parts = [
     el("div", {class: "formula-main", dataset: {text: d.text}}, mathElement(d.mathml)),
     el("p", {class: "formula-degrees"}, d.degrees),
+    d.long ? el("table", {class: "data small formula-coefficients"},
+      el("caption", {}, "The same formula, coefficient by coefficient"),
+      el("thead", {}, el("tr", {}, el("th", {scope: "col"}, "Power"),
+        el("th", {scope: "col"}, "Numerator"), el("th", {scope: "col"}, "Denominator"))),
+      el("tbody", {}, d.coefficients.map((r) => el("tr", {},
+        el("th", {scope: "row"}, r.power),
+        el("td", {}, r.numerator ? mathElement(r.numerator) : "—"),
+        el("td", {}, r.denominator ? mathElement(r.denominator) : "—"))))) : null,
     el("p", {class: d.check_ok ? "formula-check ok" : "formula-check bad"},
        el("span", {class: "mark", "aria-hidden": "true"}, d.check_ok ? "✔ " : "✖ "), d.check),
   ];

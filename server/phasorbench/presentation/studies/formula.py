@@ -10,6 +10,7 @@ zeros, balance conditions) and the numeric check in words, every number through
 from __future__ import annotations
 
 from .. import formatting as fmt
+from .. import mathforms
 
 __all__ = ["KIND_UNITS", "formula_display", "summary_text"]
 
@@ -43,6 +44,51 @@ def _root_rows(roots: list[dict]) -> list[dict]:
                      "q": (fmt.plain(1 / (2 * damping)) if damping and 0 < damping < 1
                            else fmt.MISSING)})
     return rows
+
+
+#: A formula whose text is longer than this is also shown coefficient by coefficient
+#: (MathML does not break lines, and a sheet is printed).
+LONG_FORMULA = 110
+
+
+def _power_of(term) -> tuple[int, list]:
+    """``(k, coefficient tree)`` of one term ``c·s^k`` of a polynomial tree."""
+    negative = term[0] == "-"
+    body = term[1] if negative else term
+    k, coefficient = 0, body
+    if body == ["x", "s"]:
+        k, coefficient = 1, ["n", "1", "1"]
+    elif body[0] == "^" and body[1] == ["x", "s"]:
+        k, coefficient = int(body[2][1]), ["n", "1", "1"]
+    elif body[0] == "*" and body[1] and (body[1][-1] == ["x", "s"] or (
+            body[1][-1][0] == "^" and body[1][-1][1] == ["x", "s"])):
+        last = body[1][-1]
+        k = 1 if last == ["x", "s"] else int(last[2][1])
+        rest = body[1][:-1]
+        coefficient = rest[0] if len(rest) == 1 else ["*", rest]
+    return k, (["-", coefficient] if negative else coefficient)
+
+
+def coefficient_rows(poly_tree) -> list[dict]:
+    """One row per power of s of a polynomial tree: the power and its coefficient."""
+    terms = poly_tree[1] if poly_tree[0] == "+" else [poly_tree]
+    rows = []
+    for term in terms:
+        k, coefficient = _power_of(term)
+        rows.append({"k": k, "power": "s" + str(k).translate(_SUPERSCRIPT),
+                     "mathml": mathforms.math_block(mathforms.mathml(coefficient), False),
+                     "text": mathforms.text(coefficient)})
+    return rows
+
+
+def _coefficient_table(result: dict) -> list[dict]:
+    """Rows of (power, numerator's coefficient, denominator's), highest power first."""
+    num = {r["k"]: r for r in coefficient_rows(result["numerator"]["tree"])}
+    den = {r["k"]: r for r in coefficient_rows(result["denominator"]["tree"])}
+    return [{"power": "s" + str(k).translate(_SUPERSCRIPT),
+             "numerator": num[k]["mathml"] if k in num else None,
+             "denominator": den[k]["mathml"] if k in den else None}
+            for k in sorted(set(num) | set(den), reverse=True)]
 
 
 def formula_display(result: dict) -> dict:
@@ -93,6 +139,8 @@ def formula_display(result: dict) -> dict:
         "mathml": result["formula"]["mathml"],
         "text": result["formula"]["text"],
         "latex": result["formula"]["latex"],
+        "long": len(result["formula"]["text"]) > LONG_FORMULA,
+        "coefficients": _coefficient_table(result),
         "degrees": (f"numerator of degree {result['numerator']['degree_in_s']} in s, "
                     f"denominator of degree {result['denominator']['degree_in_s']}; "
                     f"{result['terms']} terms"),
