@@ -109,32 +109,11 @@ def _contract(solution: Solution) -> dict:
     z_ok = np.isfinite(z).tolist()
     v_dicts, i_dicts = phasor_dicts(v), phasor_dicts(i)
 
-    digits = (solution.digits if solution.digits is not None
-              else np.full(len(elements), 15))
+    digits = (np.asarray(solution.digits).astype(np.int64) if solution.digits is not None
+              else np.full(len(elements), 15, dtype=np.int64))
     floor = zero_power_floor(s_list)
-    out_elements: dict[str, dict] = {}
-    for k, e in enumerate(elements):
-        kind = e.kind
-        passive = kind not in SOURCE_KINDS and kind not in CONTROLLED_KINDS
-        pf, sense = power_factor(p_list[k], q_list[k], s_list[k], not passive, floor)
-        entry = {
-            "kind": kind, "from": e.nodes[0], "to": e.nodes[1],
-            "voltage": v_dicts[k], "current": i_dicts[k],
-            "impedance": z_dicts[k] if (passive and kind != "transformer" and z_ok[k])
-            else None,
-            "p_w": p_list[k], "q_var": q_list[k], "s_va": s_list[k],
-            "pf": pf, "pf_sense": sense, "line": e.line,
-            # significant digits of V and I the extended-precision check trusts
-            "digits": int(digits[k]),
-        }
-        if kind == "transformer":
-            v2, i2 = solution.secondary[e.name]
-            entry["secondary"] = {"from": e.nodes[2], "to": e.nodes[3],
-                                  "voltage": phasor_dict(v2), "current": phasor_dict(i2)}
-            entry["ratio"] = e.value.real
-        if e.group is not None:
-            entry["group"] = e.group
-        out_elements[e.name] = entry
+    out_elements = _element_entries(solution, elements, power, s_list, p_list, q_list,
+                                    v_dicts, i_dicts, z_dicts, z_ok, digits, floor)
 
     total = complex(power.sum()) if len(power) else 0j
     apparent = float(np.abs(power).sum())
@@ -169,6 +148,51 @@ def _contract(solution: Solution) -> dict:
         result["groups"] = {name: _group(group, result, solution, floor)
                             for name, group in circuit.groups.items()}
     return result
+
+
+
+def _senses(p: np.ndarray, q: np.ndarray, s: np.ndarray, source: np.ndarray,
+            floor: float) -> tuple[list, list]:
+    """``power_factor`` for every element at once: (pf list, pf_sense list)."""
+    zero = s <= floor
+    pf = np.where(zero, 1.0, np.minimum(np.abs(p) / np.where(zero, 1.0, s), 1.0))
+    unity = zero | (np.abs(q) <= UNITY_Q_FRACTION * s)
+    takes_q = q > 0
+    # a supply quotes the sense of the load it feeds
+    lagging = np.where(source, ~takes_q, takes_q)
+    sense = np.where(unity, "unity", np.where(lagging, "lagging", "leading"))
+    return pf.tolist(), sense.tolist()
+
+
+def _element_entries(solution, elements, power, s_list, p_list, q_list, v_dicts, i_dicts,
+                     z_dicts, z_ok, digits, floor) -> dict[str, dict]:
+    """Every element's contract entry, built from columns (one pass of plain zips)."""
+    kinds = [e.kind for e in elements]
+    nodes = [e.nodes for e in elements]
+    lines = [e.line for e in elements]
+    source = np.array([k in SOURCE_KINDS or k in CONTROLLED_KINDS for k in kinds], dtype=bool)
+    pf, sense = _senses(power.real, power.imag, np.asarray(s_list), source, floor)
+    keeps_z = (~source).tolist()
+    out = {}
+    for e, kind, (first, second, *_), v, i, z, own, zok, p, q, s, f, fs, line, d in zip(
+            elements, kinds, nodes, v_dicts, i_dicts, z_dicts, keeps_z, z_ok, p_list,
+            q_list, s_list, pf, sense, lines, digits.tolist()):
+        entry = {
+            "kind": kind, "from": first, "to": second, "voltage": v, "current": i,
+            "impedance": z if (own and zok and kind != "transformer") else None,
+            "p_w": p, "q_var": q, "s_va": s, "pf": f, "pf_sense": fs, "line": line,
+            # significant digits of V and I the extended-precision check trusts
+            "digits": d,
+        }
+        if kind == "transformer":
+            v2, i2 = solution.secondary[e.name]
+            entry["secondary"] = {"from": e.nodes[2], "to": e.nodes[3],
+                                  "voltage": phasor_dict(v2), "current": phasor_dict(i2)}
+            entry["ratio"] = e.value.real
+        if e.group is not None:
+            entry["group"] = e.group
+        out[e.name] = entry
+    return out
 
 
 def _impedances(elements, v: np.ndarray, i: np.ndarray, circuit) -> np.ndarray:

@@ -7,6 +7,7 @@ sequence or handles a half-finished circuit.
 from __future__ import annotations
 
 from .errors import CircuitError, Diagnostic, bounded
+from .gcpause import held
 from .model import Circuit
 
 
@@ -19,9 +20,10 @@ def read_circuit(text: str, filename: str = "<circuit>") -> Circuit:
     from .checks import check_structure
     from .language.parser import parse_circuit
 
-    circuit, diagnostics = parse_circuit(text, filename, strict=False)
     try:
-        check_structure(circuit, diagnostics)
+        with held():                      # bulk build: no collection passes over it
+            circuit, diagnostics = parse_circuit(text, filename, strict=False)
+            check_structure(circuit, diagnostics)
     except CircuitError as exc:
         exc.diagnostics = bounded(exc.diagnostics)
         raise
@@ -59,6 +61,7 @@ def solve_circuit(circuit: Circuit) -> dict:
     from .solver import solve
     from .superposition import solve_superposed, source_frequencies
 
-    if len(source_frequencies(circuit)) > 1:
-        return solve_superposed(circuit)
-    return contract(solve(circuit))
+    with held():
+        if len(source_frequencies(circuit)) > 1:
+            return solve_superposed(circuit)
+        return contract(solve(circuit))

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from .common import EXIT_OK, dump_json, load_source, print_diagnostics, print_warnings
+from .common import EXIT_OK, load_source, print_diagnostics, print_warnings, write_json
 
 __all__ = ["add_circuit_commands", "command_solve", "command_check"]
 
@@ -26,7 +26,7 @@ def command_solve(args) -> int:
     text, name = load_source(args)
     result = solve_text(text, name)
     if args.json:
-        sys.stdout.write(dump_json(result) + "\n")
+        write_json(result)
     else:
         from .terminal import result_table
         sys.stdout.write(result_table(result))

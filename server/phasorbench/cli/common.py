@@ -2,13 +2,13 @@
 
 from __future__ import annotations
 
-import json
 import sys
 
 from ..errors import Diagnostic, format_diagnostic, source_lines
+from ..jsonout import dumps
 
 __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
-           "load_source", "print_diagnostics", "print_warnings", "dump_json"]
+           "load_source", "print_diagnostics", "print_warnings", "dump_json", "write_json"]
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
 
@@ -63,8 +63,21 @@ def print_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> No
 
 
 def dump_json(data) -> str:
-    """JSON with no NaN or infinity (refused rather than written)."""
-    return json.dumps(data, ensure_ascii=False, allow_nan=False)
+    """Strict JSON text (``jsonout.dumps``: no NaN or infinity, which become null)."""
+    return dumps(data).decode("utf-8")
+
+
+def write_json(data) -> None:
+    """Write ``data`` as one line of JSON to standard output, as bytes when it can."""
+    body = dumps(data) + b"\n"
+    out = sys.stdout
+    buffer = getattr(out, "buffer", None)
+    if buffer is None:
+        out.write(body.decode("utf-8"))
+        return
+    out.flush()                      # keep the order of anything written as text before
+    buffer.write(body)
+    buffer.flush()
 
 
 def print_warnings(warnings: list[dict], name: str, text: str) -> None:

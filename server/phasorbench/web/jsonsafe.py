@@ -6,10 +6,11 @@ write ``NaN`` (not JSON at all), so each float is checked once here.
 
 from __future__ import annotations
 
-import json
 import math
 
 from fastapi.responses import JSONResponse
+
+from ..jsonout import dumps
 
 
 def jsonable(value):
@@ -39,8 +40,8 @@ def jsonable(value):
 
 
 class StrictJSONResponse(JSONResponse):
-    """A JSON response that cleans its content first and refuses NaN as a last resort."""
+    """A JSON response written by the one encoder (``jsonout.dumps``): strict JSON,
+    non-finite floats as null, numpy values unwrapped, without a cleaning copy first."""
 
     def render(self, content) -> bytes:
-        return json.dumps(jsonable(content), ensure_ascii=False, allow_nan=False,
-                          separators=(",", ":")).encode("utf-8")
+        return dumps(content)
