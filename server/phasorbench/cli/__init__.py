@@ -22,6 +22,7 @@ import sys
 import traceback
 
 from .. import __version__
+from ..blas import pin_before_import
 from ..errors import CircuitError
 from .common import (EXIT_INPUT, EXIT_INTERNAL, EXIT_OK, InputFileError, dump_json, load_source,
                      print_diagnostics, read_source)
@@ -53,6 +54,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
+    pin_before_import()          # one BLAS thread per solve (see blas.py)
     parser = build_parser()
     args = parser.parse_args(argv)
     if not getattr(args, "run", None):

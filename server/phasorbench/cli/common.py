@@ -2,10 +2,10 @@
 
 from __future__ import annotations
 
+import json
 import sys
 
 from ..errors import Diagnostic, format_diagnostic, source_lines
-from ..jsonout import dumps
 
 __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
            "load_source", "print_diagnostics", "print_warnings", "dump_json", "write_json"]
@@ -63,12 +63,18 @@ def print_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> No
 
 
 def dump_json(data) -> str:
-    """Strict JSON text (``jsonout.dumps``: no NaN or infinity, which become null)."""
-    return dumps(data).decode("utf-8")
+    """JSON with no NaN or infinity (refused rather than written)."""
+    return json.dumps(data, ensure_ascii=False, allow_nan=False)
 
 
 def write_json(data) -> None:
-    """Write ``data`` as one line of JSON to standard output, as bytes when it can."""
+    """Write a contract dict as one line of JSON to standard output, as bytes.
+
+    The contract holds finite numbers only (``results.contract`` refuses a power that
+    overflows), so the fast encoder ``jsonout.dumps`` writes it.
+    """
+    from ..jsonout import dumps
+
     body = dumps(data) + b"\n"
     out = sys.stdout
     buffer = getattr(out, "buffer", None)

@@ -10,10 +10,9 @@ import argparse
 import ipaddress
 import sys
 import threading
-import webbrowser
 
 from ..web.settings import (DEFAULT_HOST, DEFAULT_PORT, LOOPBACK_NAMES, MAX_ELEMENTS, SETTINGS_HELP,
-                       WILDCARD_HOSTS, Settings)
+                            SOLVE_WORKERS, WILDCARD_HOSTS, Settings, body_limit)
 
 __all__ = ["add_serve_arguments", "add_serve_command", "serve_main", "is_loopback", "page_url"]
 
@@ -26,8 +25,12 @@ def add_serve_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--sample", metavar="NAME", default=None,
                         help="sample (a file name in samples/, without .circuit) the page "
                              "loads when the browser has no saved circuit; default: the first")
-    parser.add_argument("--max-elements", type=int, default=MAX_ELEMENTS,
+    parser.add_argument("--max-elements", type=int, default=MAX_ELEMENTS, metavar="N",
                         help=SETTINGS_HELP["max_elements"])
+    parser.add_argument("--max-body-mb", type=float, default=None, metavar="MB",
+                        help=SETTINGS_HELP["max_body_bytes"])
+    parser.add_argument("--workers", type=int, default=SOLVE_WORKERS, metavar="N",
+                        help=SETTINGS_HELP["solve_workers"])
     parser.add_argument("--allow-host", action="append", default=[], metavar="NAME",
                         help="also accept this name in the Host header (when serving beyond "
                              "loopback); may be repeated")
@@ -69,8 +72,20 @@ def serve_main(args) -> int:
               file=sys.stderr)
         return 2
     sample = getattr(args, "sample", None)
+    max_elements = getattr(args, "max_elements", MAX_ELEMENTS)
+    body_mb = getattr(args, "max_body_mb", None)
+    workers = getattr(args, "workers", SOLVE_WORKERS)
+    for flag, value in (("--max-elements", max_elements), ("--max-body-mb", body_mb),
+                        ("--workers", workers)):
+        if value is not None and not value > 0:
+            print(f"phasorbench serve: {flag} must be greater than 0, not {value}",
+                  file=sys.stderr)
+            return 2
     settings = Settings(host=args.host, port=args.port, initial_sample=sample,
-                        max_elements=getattr(args, "max_elements", MAX_ELEMENTS),
+                        max_elements=max_elements,
+                        max_body_bytes=(int(body_mb * 2**20) if body_mb is not None
+                                        else body_limit(max_elements)),
+                        solve_workers=workers,
                         allowed_hosts=tuple(getattr(args, "allow_host", []) or ()))
     if sample and not (settings.samples_dir / f"{sample}.circuit").is_file():
         print(f"phasorbench serve: no sample named '{sample}' in {settings.samples_dir}",
@@ -100,6 +115,7 @@ def serve_main(args) -> int:
         if server.started:
             print(f"phasorbench: workbench at {url}  (Ctrl+C stops it)", flush=True)
             if getattr(args, "open", False):
+                import webbrowser
                 webbrowser.open(url)
 
     announcer = threading.Thread(target=announce, daemon=True)

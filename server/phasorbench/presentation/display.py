@@ -14,6 +14,7 @@ import math
 from .formatting import (ELEMENT_COLUMNS, LIMITED, MISSING, NODE_COLUMNS, ROUND_OFF, SHOWN_DIGITS,
                           element_rows, eng, node_rows, phasor, plain, power_factor, rect,
                           shown_digits)
+from .rows import first_rows
 
 #: Used only when a result carries no balance verdict of its own (results.py gives one):
 #: the residual may be this fraction of the summed |S| (double-precision round-off
@@ -130,14 +131,23 @@ def power_summary(result: dict) -> dict:
 
 
 def solve_display(result: dict) -> dict:
-    """Everything the page shows of a solve, as strings (and raw numbers for sorting)."""
+    """Everything the page shows of a solve, as strings (and raw numbers for sorting).
+
+    A big circuit's tables come as their first rows (``rows.first_rows``:
+    ``rows_partial`` true, ``element_total`` and ``node_total`` the full counts); the
+    page asks for the other windows as it scrolls (``rows.table_window``).
+    """
+    first = first_rows(result)
     return {
         "facts": facts(result),
         "element_columns": [{"key": k, "heading": h} for k, h in ELEMENT_COLUMNS],
-        "elements": element_rows(result),
+        "elements": first["elements"],
+        "element_total": first["element_total"],
         "groups": group_rows(result),
         "node_columns": [{"key": k, "heading": h} for k, h in NODE_COLUMNS],
-        "nodes": node_rows(result),
+        "nodes": first["nodes"],
+        "node_total": first["node_total"],
+        "rows_partial": first["partial"],
         "summary": power_summary(result),
         "warnings": [w.get("message", "") for w in result.get("warnings", [])],
         "tools": tool_choices(result),
@@ -277,7 +287,7 @@ def group_detail(result: dict, name: str) -> dict:
     g = result["groups"][name]
     s_floor, v_floor, i_floor = _floors(result)
     members = set(g.get("elements", []))
-    phases = [row for row in element_rows(result) if row["name"] in members]
+    phases = element_rows(result, [n for n in result["elements"] if n in members])
     pairs = ("ab", "bc", "ca")
     line_current, line_voltage = g.get("line_current", {}), g.get("line_voltage", {})
     lines = [{"line": line, "current": phasor(line_current.get(phase), "A", floor=i_floor),

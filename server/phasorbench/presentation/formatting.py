@@ -331,8 +331,9 @@ def _limited(text: str, digits: int) -> str:
     return text if digits >= SHOWN_DIGITS or text == MISSING else LIMITED + text
 
 
-def element_rows(result: dict) -> list[dict]:
-    """One row per element of a contract dict, in the circuit's order.
+def element_rows(result: dict, names=None) -> list[dict]:
+    """One row per element of a contract dict, in the circuit's order (or, given
+    ``names``, of those elements in that order: a window of a big table).
 
     Each row is ``{"name", "kind", "from", "to", "values": {...}, "text": {...},
     "secondary": None or {"voltage", "current"}}``. ``values`` holds the raw numbers
@@ -349,7 +350,8 @@ def element_rows(result: dict) -> list[dict]:
                      + [_mag(n) for n in result.get("nodes", {}).values()])
     i_floor = _floor([_mag(e.get("current")) for e in elements.values()])
     rows = []
-    for name, el in elements.items():
+    chosen = elements.items() if names is None else ((n, elements[n]) for n in names)
+    for name, el in chosen:
         values = {}
         for key, prefix in (("voltage", "v"), ("current", "i"), ("impedance", "z")):
             values.update(_phasor_values(el.get(key), prefix))
@@ -396,8 +398,9 @@ def _pf_text(el: dict, s_floor: float, digits: int = SHOWN_DIGITS) -> str:
     return power_factor(pf, sense, digits)
 
 
-def node_rows(result: dict) -> list[dict]:
-    """One row per node: ``{"name", "values": {v_mag, v_deg, v_re, v_im}, "text": {...}}``.
+def node_rows(result: dict, names=None) -> list[dict]:
+    """One row per node (or per node of ``names``, in that order): ``{"name", "values":
+    {v_mag, v_deg, v_re, v_im}, "text": {...}}``.
 
     ``text`` holds every column of `NODE_COLUMNS`; voltages below 1e-12 of the largest
     node voltage show as 0.
@@ -406,7 +409,8 @@ def node_rows(result: dict) -> list[dict]:
     trusted = result.get("node_digits") or {}
     v_floor = _floor([_mag(n) for n in nodes.values()])
     rows = []
-    for name, ph in nodes.items():
+    chosen = nodes.items() if names is None else ((n, nodes[n]) for n in names)
+    for name, ph in chosen:
         d = shown_digits(trusted.get(name))
         rows.append({"name": name, "values": _phasor_values(ph, "v"),
                      "text": {"name": name,

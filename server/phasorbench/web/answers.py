@@ -15,8 +15,10 @@ from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
 from ..presentation.display import (correction_display, group_detail, port_display, solve_display,
                       waveform_display)
+from ..presentation.rows import table_window
 from .limits import check_size
 from .settings import Settings
+from .solved import SolvedCache
 
 #: The name circuit texts from the page carry in diagnostics.
 PAGE_FILENAME = "<workbench>"
@@ -48,17 +50,49 @@ def check_answer(text: str, settings: Settings) -> dict:
     return diagnostics_answer(workflow.check_text(text, PAGE_FILENAME))
 
 
-def _solved(text: str, settings: Settings) -> dict:
-    check_size(text, settings.max_elements)
+#: The last few solved texts, shared by every route of every app in this process: a
+#: solve, its phasors, its waveform and its table windows read and solve the text once.
+SOLVED = SolvedCache()
+
+#: The contract's per-element and per-node maps, left out of the page's solve answer
+#: (the page shows the display rows; the numbers behind them stay on the server).
+_BULK_FIELDS = ("elements", "nodes", "node_digits")
+
+
+def _solve(text: str) -> dict:
     return workflow.solve_text(text, PAGE_FILENAME)
 
 
-def solve_answer(text: str, settings: Settings) -> dict:
-    """The contract dict of ``text`` with a ``display`` field of formatted strings."""
+def _solved(text: str, settings: Settings) -> dict:
+    """The contract dict of ``text`` (shared: never change it), solved once per text."""
+    check_size(text, settings.max_elements)
+    return SOLVED.get(text, _solve)
+
+
+def solve_answer(text: str, contract: bool, settings: Settings) -> dict:
+    """The contract dict of ``text`` with a ``display`` field of formatted strings.
+
+    Without ``contract`` the per-element and per-node maps are left out: the answer the
+    page reads, no bigger than what it shows.
+    """
     result = _solved(text, settings)
-    answer = dict(result)
+    if contract:
+        answer = dict(result)
+    else:
+        answer = {k: v for k, v in result.items() if k not in _BULK_FIELDS}
     answer["display"] = solve_display(result)
     return answer
+
+
+def rows_answer(text: str, window: dict, settings: Settings) -> dict:
+    """One window of the branch or node table (``rows.table_window``) of ``text``.
+
+    ``window`` holds ``table``, ``start``, ``count``, ``sort``, ``direction`` and
+    ``find`` as the request gave them.
+    """
+    result = _solved(text, settings)
+    return table_window(result, window["table"], window["start"], window["count"],
+                        window.get("sort"), window.get("direction", 1), window.get("find", ""))
 
 
 def _picked(result: dict, names: list[str], settings: Settings) -> list[str]:

@@ -21,6 +21,7 @@ from ..errors import CircuitError
 from . import answers
 from .jsonsafe import StrictJSONResponse
 from .samples import list_samples
+from ..presentation.rows import MAX_WINDOW, ROW_WINDOW
 from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX
 
 log = logging.getLogger("phasorbench.web")
@@ -33,6 +34,26 @@ class CircuitBody(BaseModel):
     """A circuit text in the project's circuit language."""
 
     netlist: str = Field(description="the circuit text, as typed in the editor or kept in a .circuit file")
+
+
+class SolveBody(CircuitBody):
+    """A circuit text, and whether the answer carries the whole results contract."""
+
+    contract: bool = Field(True, description="false: leave the per-element and per-node maps "
+                                             "out (the page reads the display rows only)")
+
+
+class RowsBody(CircuitBody):
+    """A circuit text and the window of one of its tables to show."""
+
+    table: Literal["elements", "nodes"] = Field("elements", description="the branch or the node table")
+    start: int = Field(0, ge=0, description="first row of the window (0-based, in the order asked)")
+    count: int = Field(ROW_WINDOW, ge=0, le=MAX_WINDOW, description="rows in the window")
+    sort: str | None = Field(None, description="column the branch table is sorted by "
+                                               "(none: circuit order)")
+    direction: Literal[1, -1] = Field(1, description="1 ascending, -1 descending")
+    find: str = Field("", max_length=200, description="keep rows whose name or terminals "
+                                                      "contain this text (no case)")
 
 
 class ViewBody(CircuitBody):
@@ -131,12 +152,21 @@ async def check(body: CircuitBody, request: Request):
     return await run_job(request, answers.check_answer, body.netlist)
 
 
-async def solve(body: CircuitBody, request: Request):
+async def solve(body: SolveBody, request: Request):
     """Solve a circuit: the results contract plus a ``display`` field of formatted text.
 
+    A circuit of more than 1,000 elements or nodes carries the first 200 table rows in
+    ``display`` (``rows_partial`` true); ``POST /api/rows`` gives the others.
     422 ``{"errors": [...], "warnings": [...]}`` when the circuit has errors.
     """
-    return await run_job(request, answers.solve_answer, body.netlist)
+    return await run_job(request, answers.solve_answer, body.netlist, body.contract)
+
+
+async def rows(body: RowsBody, request: Request):
+    """A window of a solved circuit's branch or node table, sorted and filtered as asked:
+    ``{"table", "total", "start", "rows"}`` (rows as in ``display.elements`` / ``nodes``)."""
+    window = body.model_dump(include={"table", "start", "count", "sort", "direction", "find"})
+    return await run_job(request, answers.rows_answer, body.netlist, window)
 
 
 async def waveforms(body: ViewBody, request: Request):

@@ -19,6 +19,7 @@ from starlette.routing import Mount
 from starlette.staticfiles import StaticFiles
 
 from .. import __version__
+from ..blas import pin_loaded
 from . import api, pages, sheet_routes, study_routes, tolerance_routes
 from .guards import HostOriginGuard
 from starlette.exceptions import HTTPException as StarletteHTTPException
@@ -43,6 +44,7 @@ def _routes(settings: Settings) -> list:
         page("/docs", pages.api_docs),
         post("/api/check", api.check, "Check a circuit (errors and warnings, no solve)"),
         post("/api/solve", api.solve, "Solve a circuit (results contract + display text)"),
+        post("/api/rows", api.rows, "A window of a solved circuit's branch or node table"),
         post("/api/waveforms", api.waveforms, "Sample v(t), i(t), p(t) of elements, with SVG"),
         post("/api/phasors", api.phasors, "Phasor diagram SVG of elements"),
         post("/api/three-phase", api.three_phase,
@@ -106,6 +108,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     for folder in (settings.static_dir, settings.templates_dir):
         if not folder.is_dir():
             raise RuntimeError(f"phasorbench web: folder not found: {folder}")
+    pin_loaded()             # one BLAS thread per solve worker (see blas.py)
     pool = ThreadPoolExecutor(max_workers=settings.solve_workers,
                               thread_name_prefix="phasorbench-solve")
 

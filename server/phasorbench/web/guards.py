@@ -12,6 +12,7 @@ It is plain ASGI middleware so it runs before routing and before any body is par
 from __future__ import annotations
 
 import json
+import math
 from urllib.parse import urlsplit
 
 from .settings import Settings
@@ -154,8 +155,12 @@ def _replay(body: bytes, original):
 
 
 async def _refuse_too_large(send, limit: int) -> None:
-    await _refuse(send, 413, f"the request body is larger than the limit of {limit} bytes",
-                  "split the circuit or raise the limit with the server's settings")
+    mb = limit / 2**20
+    await _refuse(send, 413, f"the request body is larger than this server's limit of "
+                  f"{mb:.1f} MB ({limit} bytes)",
+                  f"start the server with a larger limit, e.g. phasorbench serve "
+                  f"--max-body-mb {max(64, 2 * math.ceil(mb))} (or --max-elements, which "
+                  "raises it too), or split the circuit")
 
 
 async def _refuse(send, status: int, message: str, hint: str) -> None:

@@ -34,5 +34,11 @@ def check_size(text: str, max_elements: int) -> None:
         raise CircuitError([Diagnostic(
             message=(f"the circuit has {count} elements, more than this server's limit "
                      f"of {max_elements}"),
-            hint=("solve it with the command line (phasorbench solve FILE), or split it "
-                  "into smaller circuits"))])
+            hint=(f"start the server with a higher limit (phasorbench serve --max-elements "
+                  f"{_rounded_up(count)}), solve it with the command line (phasorbench "
+                  "solve FILE), or split it into smaller circuits"))])
+
+
+def _rounded_up(count: int) -> int:
+    """A limit a little above ``count``, in round thousands."""
+    return -(-count * 11 // 10 // 1000) * 1000

@@ -13,12 +13,24 @@ from pathlib import Path
 #: Loopback only by default: the workbench is a personal tool, not a shared service.
 DEFAULT_HOST = "127.0.0.1"
 DEFAULT_PORT = 8000
-#: 2 MB holds a circuit of tens of thousands of lines; anything larger is a mistake
-#: (a pasted binary, a runaway script) and is refused before it is read in full.
-MAX_BODY_BYTES = 2 * 1024 * 1024
-#: The page draws one table row per element; beyond a few thousand rows the page is
-#: no longer readable and a solve takes long enough to look like a hang.
-MAX_ELEMENTS = 5000
+#: The page draws only the table rows in view (rows.py), so it stays responsive at
+#: tens of thousands of elements; beyond this a solve takes long enough to look like
+#: a hang. ``serve --max-elements`` raises it (a 300×300 mesh has 270,000).
+MAX_ELEMENTS = 50_000
+#: Request body bytes allowed per element of the limit: an element line is 30 to 60
+#: bytes, so a body this big is a circuit within the element limit, and anything
+#: larger is a mistake (a pasted binary, a runaway script) refused before it is read.
+BODY_BYTES_PER_ELEMENT = 128
+#: The body limit never goes below this (small limits still take a commented file).
+MIN_BODY_BYTES = 2 * 1024 * 1024
+
+
+def body_limit(max_elements: int) -> int:
+    """The request body limit that goes with an element limit (``--max-body-mb`` unset)."""
+    return max(MIN_BODY_BYTES, BODY_BYTES_PER_ELEMENT * max_elements)
+
+
+MAX_BODY_BYTES = body_limit(MAX_ELEMENTS)
 #: Elements whose waveforms or phasors one request may ask for (one SVG each).
 MAX_VIEW_ELEMENTS = 24
 #: Bounds of a picture size a request may ask for: smaller is unreadable, larger is
@@ -94,8 +106,11 @@ class Settings:
 SETTINGS_HELP = {
     "host": f"address to listen on (default {DEFAULT_HOST}, loopback only)",
     "port": f"port to listen on (default {DEFAULT_PORT})",
-    "max_body_bytes": f"largest request body accepted, in bytes (default {MAX_BODY_BYTES}); larger gets 413",
-    "max_elements": f"largest circuit solved, in elements (default {MAX_ELEMENTS}); larger gets 422",
+    "max_body_bytes": (f"largest request body accepted, in MB (default {BODY_BYTES_PER_ELEMENT} "
+                       f"bytes per element of --max-elements, at least {MIN_BODY_BYTES // 2**20} "
+                       f"MB: {MAX_BODY_BYTES / 2**20:.1f} MB); larger gets 413"),
+    "max_elements": (f"largest circuit solved, in elements (default {MAX_ELEMENTS:,}); larger "
+                     "gets 422; the body limit grows with it"),
     "max_view_elements": f"elements per waveform or phasor request (default {MAX_VIEW_ELEMENTS})",
     "solve_workers": f"worker threads for solving (default {SOLVE_WORKERS})",
 }
