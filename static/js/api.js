@@ -29,7 +29,9 @@ async function postJSON(path, body, signal) {
 }
 
 export const postCheck = (netlist, signal) => postJSON("/api/check", {netlist}, signal);
-export const postSolve = (netlist, signal) => postJSON("/api/solve", {netlist}, signal);
+export const postSolve = (netlist, signal) => postJSON("/api/solve", {netlist, contract: false}, signal);
+/** `window`: {table, start, count, sort, direction, find} (see /docs). */
+export const postRows = (netlist, window, signal) => postJSON("/api/rows", {netlist, ...window}, signal);
 export const postPhasors = (netlist, elements, size, signal) =>
   postJSON("/api/phasors", {netlist, elements, ...size}, signal);
 export const postWaveforms = (netlist, elements, size, signal) =>

@@ -45,6 +45,11 @@ export function debounce(fn, ms) {
     clearTimeout(timer);
     timer = setTimeout(() => { timer = null; fn(...args); }, ms);
   };
+  /** Forget a waiting call. */
+  wrapped.cancel = () => {
+    clearTimeout(timer);
+    timer = null;
+  };
   /** Run now if a call is waiting (and cancel the wait); otherwise do nothing. */
   wrapped.flush = (...args) => {
     if (timer === null) return;

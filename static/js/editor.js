@@ -8,6 +8,8 @@
 import {el} from "./dom.js";
 
 const MARK = {error: "✖", warning: "▲"};
+// Texts up to this size replace the editor's text as an undoable edit.
+const UNDOABLE_CHARS = 100_000;
 
 export function createEditor({textarea, gutter, backdrop}) {
   // Line numbers are one text node; marks are a few absolutely placed rows over it
@@ -107,11 +109,15 @@ export function createEditor({textarea, gutter, backdrop}) {
     syncScroll();
   }
 
-  /** Replace the whole text, keeping the browser's undo history where it can. */
+  /**
+   * Replace the whole text, keeping the browser's undo history where it can (not for a
+   * big circuit: the editing machinery behind undo takes minutes over megabytes).
+   */
   function setText(text) {
     textarea.focus();
     textarea.select();
-    const done = document.execCommand && document.execCommand("insertText", false, text);
+    const done = text.length <= UNDOABLE_CHARS && document.execCommand &&
+      document.execCommand("insertText", false, text);
     if (!done || textarea.value !== text) textarea.value = text;
     textarea.setSelectionRange(0, 0);
     textarea.scrollTop = 0;

@@ -3,7 +3,7 @@
 // State lives in one object; what must survive a reload (the circuit text and the
 // view settings) is written to localStorage on every change.
 
-import {getSamples, postCheck, postPhasors, postSolve, postWaveforms} from "./api.js";
+import {getSamples, postCheck, postPhasors, postRows, postSolve, postWaveforms} from "./api.js";
 import {createCorrection} from "./correction.js";
 import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
@@ -20,6 +20,7 @@ import {createTabs, savedTool} from "./tools.js";
 import {clearViews, renderPicker, showPhasors, showWaveform} from "./views.js";
 
 const CHECK_DELAY_MS = 350;
+const FIND_DELAY_MS = 200;
 const SOURCE_KINDS = new Set(["voltage", "current", "vcvs", "vccs", "ccvs", "cccs"]);
 const $ = (id) => document.getElementById(id);
 
@@ -28,6 +29,7 @@ const state = {
   shown: [],             // further elements drawn in the phasor diagram
   sort: {key: null, dir: 1},
   expanded: [],          // three-phase blocks whose phase rows are open in the branch table
+  find: "",              // the branch table's filter text
   answer: null,          // the last successful solve answer
   solvedText: "",        // the text that answer belongs to
   seq: {check: 0, solve: 0, views: 0},
@@ -127,7 +129,10 @@ function showBanner(text, kind) {
 async function solve() {
   const text = editor.getText();
   if (!text.trim()) return false;
-  scheduleCheck.flush();
+  // The solve reads the text once and answers with its diagnostics too: no check of
+  // the same text beside it (one parse and one solve per action).
+  scheduleCheck.cancel();
+  abortable("check");
   const {signal, seq} = abortable("solve");
   $("solve").disabled = true;
   try {
@@ -136,6 +141,7 @@ async function solve() {
     if (ok) {
       state.answer = data;
       state.solvedText = text;
+      showDiagnostics([], data.warnings || []);
       showEdited();
       $("results").classList.remove("stale");
       const warnings = data.display.warnings;
@@ -189,28 +195,56 @@ function elementNames() {
   return state.answer ? state.answer.display.elements.map((r) => r.name) : [];
 }
 
+/** Whether `name` is an element of the circuit on screen (a big one's rows are not all here). */
+function isElement(name) {
+  if (!state.answer || !name) return false;
+  return state.answer.display.rows_partial || elementNames().includes(name);
+}
+
+/** A window of the solved circuit's branch or node table, in the order shown. */
+async function fetchRows({table, start, count}) {
+  const window = {table, start, count, find: table === "elements" ? state.find : ""};
+  if (table === "elements" && state.sort.key) Object.assign(window, {sort: state.sort.key, direction: state.sort.dir});
+  const {ok, data} = await postRows(state.solvedText, window);
+  if (!ok) throw new Error(problemText(data));
+  if (table === "elements") showCount(data.total);
+  return data;
+}
+
+function showCount(total) {
+  const display = state.answer && state.answer.display;
+  $("branch-count").textContent = !display || !state.find ? "" :
+    `${total} of ${display.element_total}`;
+}
+
 function tableOptions() {
-  return {selected: state.selected, sort: state.sort, expanded: state.expanded,
-          onSelect: select, onSort: sortBy, onToggle: toggleGroup};
+  return {selected: state.selected, sort: state.sort, expanded: state.expanded, find: state.find,
+          onSelect: select, onSort: sortBy, onToggle: toggleGroup, fetchRows};
+}
+
+function drawBranchTable() {
+  renderBranchTable($("branch-table"), state.answer.display, tableOptions());
 }
 
 function renderResults() {
   const display = state.answer.display;
   const names = elementNames();
-  if (!names.includes(state.selected)) {
+  if (!names.includes(state.selected) && !(display.rows_partial && state.selected)) {
     // Start on the first element that is not a source: its waveform tells more.
     const first = display.elements.find((r) => !SOURCE_KINDS.has(r.kind));
     state.selected = first ? first.name : names[0] || null;
   }
-  state.shown = state.shown.filter((n) => names.includes(n) && n !== state.selected);
+  state.shown = state.shown.filter((n) => isElement(n) && n !== state.selected);
   const blocks = (display.groups || []).map((g) => g.name);
   state.expanded = state.expanded.filter((n) => blocks.includes(n));
   const owner = blockOf(state.selected);
   if (owner && !state.expanded.includes(owner)) state.expanded.push(owner);
   save({selected: state.selected, shown: state.shown, expanded: state.expanded});
   renderFacts(display.facts);
-  renderBranchTable($("branch-table"), display, tableOptions());
-  renderNodeTable($("node-table"), display);
+  $("branch-table").closest(".table-wrap").scrollTop = 0;
+  drawBranchTable();
+  showCount(display.element_total);
+  renderNodeTable($("node-table"), display, {fetchRows});
   renderSummary(display.summary);
   renderPickerNow();
   updateTools(display.tools);
@@ -245,7 +279,7 @@ function toggleGroup(name) {
   const open = state.expanded.includes(name);
   state.expanded = open ? state.expanded.filter((n) => n !== name) : [...state.expanded, name];
   save({expanded: state.expanded});
-  renderBranchTable($("branch-table"), state.answer.display, tableOptions());
+  drawBranchTable();
   const row = document.querySelector(`#branch-table tr[data-group="${CSS.escape(name)}"]`);
   if (row) {
     for (const tr of $("branch-table").tBodies[0].rows) tr.tabIndex = tr === row ? 0 : -1;
@@ -261,6 +295,7 @@ function toggleGroup(name) {
 function renderPickerNow() {
   renderPicker($("phasor-picker"), elementNames(), {
     shown: state.shown, selected: state.selected, limit: limit(),
+    total: state.answer.display.element_total, accepts: isElement,
     onChange(shown) {
       state.shown = shown;
       save({shown});
@@ -272,13 +307,14 @@ function renderPickerNow() {
 function sortBy(sort) {
   state.sort = sort;
   save({sort});
-  renderBranchTable($("branch-table"), state.answer.display, tableOptions());
+  $("branch-table").closest(".table-wrap").scrollTop = 0;
+  drawBranchTable();
   const th = document.querySelector(`#branch-table th[data-key="${sort.key}"] button`);
   if (th) th.focus();
 }
 
 function select(name, {focus = false} = {}) {
-  if (!state.answer || !elementNames().includes(name)) return;
+  if (!isElement(name)) return;
   const changed = name !== state.selected;
   state.selected = name;
   state.shown = state.shown.filter((n) => n !== name);
@@ -288,7 +324,7 @@ function select(name, {focus = false} = {}) {
     // A phase of a closed block: open it so the selected row can be seen.
     state.expanded = [...state.expanded, owner];
     save({expanded: state.expanded});
-    renderBranchTable($("branch-table"), state.answer.display, tableOptions());
+    drawBranchTable();
   }
   markSelected($("branch-table"), name, {focus});
   if (changed) {
@@ -456,6 +492,14 @@ async function init() {
     }
   });
   $("solve").addEventListener("click", solve);
+  const find = $("branch-find");
+  find.addEventListener("input", debounce(() => {
+    state.find = find.value;
+    if (!state.answer) return;
+    $("branch-table").closest(".table-wrap").scrollTop = 0;
+    drawBranchTable();
+    if (!state.answer.display.rows_partial) showCount(document.querySelectorAll("#branch-table tbody tr[data-element]").length);
+  }, FIND_DELAY_MS));
   $("export-sheet").addEventListener("click", exportCurrentSheet);
   window.addEventListener("resize", onResize);
   setupCautions(saved.cautionsOpen === true);
@@ -472,9 +516,7 @@ async function init() {
     save({netlist: sample.netlist, sample: sample.name});
   }
   if (editor.getText().trim()) {
-    scheduleCheck();
-    scheduleCheck.flush();           // one check now, none left waiting
-    await solve();
+    await solve();                      // its answer holds the diagnostics too
   }
   document.body.dataset.ready = "true";
 }

@@ -2,6 +2,7 @@
 // Cells show the server's display strings; sorting reads the raw numbers beside them.
 
 import {el} from "./dom.js";
+import {plainBody, windowedBody} from "./vtable.js";
 
 // Column key (from the server's element_columns) → raw value it sorts by.
 const SORT_BY = {
@@ -122,7 +123,8 @@ const visibleRows = (body) => [...body.rows].filter((r) => !r.hidden && (r.datas
  * three-phase block's row is opened or closed (`expanded` lists the open ones).
  */
 export function renderBranchTable(table, display, {selected, sort, onSelect, onSort, onToggle = () => {},
-                                                   expanded = [], all = false}) {
+                                                   expanded = [], all = false, find = "",
+                                                   fetchRows = null}) {
   const allColumns = display.element_columns;
   const folded = Object.fromEntries(Object.entries(FOLDED)
     .filter(([sub, host]) => allColumns.some((c) => c.key === sub) && allColumns.some((c) => c.key === host))
@@ -137,11 +139,26 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
                     onclick: () => onSort(nextSort(sort, key))}, heading));
   }));
   table.tHead.replaceChildren(head);
-  const hasGroups = (display.groups || []).length > 0;
+  const hasGroups = (display.groups || []).length > 0 && !display.rows_partial;
   table.setAttribute("role", hasGroups ? "treegrid" : "grid");
+  wireBody(table, {onSelect, onToggle});
+  if (display.rows_partial) {
+    // A big circuit: its rows are on the server, drawn as they scroll into view.
+    windowedBody(table, {
+      total: display.element_total, columns: columns.length,
+      first: sort && sort.key || find ? [] : display.elements,
+      fetch: (start, count) => fetchRows({table: "elements", start, count}),
+      drawRow: (row) => cells(el("tr", {dataset: {element: row.name}}), row, columns, folded),
+      afterDraw: () => markSelected(table, selected),
+    });
+    return;
+  }
+  plainBody(table);
 
-  const sorted = sortedBy(tableUnits(display), sort, (u) => u.row);
-  const total = display.elements.length;
+  const matches = finder(find);
+  const sorted = sortedBy(tableUnits(display).filter((u) => matches(u.row) ||
+    (u.members || []).some(matches)), sort, (u) => u.row);
+  const total = shownTotal(sorted);
   let units = sorted;
   if (!all && total > ROW_LIMIT) {
     units = [];
@@ -173,13 +190,28 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
       body.append(cells(tr, row, columns, folded));
     }
   }
-  if (!units.length) body.append(el("tr", {class: "empty"}, el("td", {colspan: columns.length}, "No elements.")));
-  if (drawn.length < total) {
-    body.append(moreRow(columns.length, drawn.length, total, () =>
-      renderBranchTable(table, display, {selected, sort, onSelect, onSort, onToggle, expanded, all: true})));
+  if (!units.length) body.append(el("tr", {class: "empty"}, el("td", {colspan: columns.length},
+                                                               find ? "No rows match." : "No elements.")));
+  if (drawn.length < shownTotal(sorted)) {
+    body.append(moreRow(columns.length, drawn.length, shownTotal(sorted), () =>
+      renderBranchTable(table, display, {selected, sort, onSelect, onSort, onToggle, expanded,
+                                         find, all: true})));
   }
   table.tBodies[0].replaceChildren(body);
   markSelected(table, selected);
+}
+
+const shownTotal = (units) => units.reduce((n, u) => n + (u.members ? u.members.length : 1), 0);
+
+/** Rows whose name or terminals contain `find` (no case); every row when it is empty. */
+function finder(find) {
+  const needle = (find || "").trim().toLowerCase();
+  if (!needle) return () => true;
+  return (row) => [row.name, row.from, row.to].some((t) => String(t ?? "").toLowerCase().includes(needle));
+}
+
+/** Click and keyboard handling of the branch table's rows (drawn in full or windowed). */
+function wireBody(table, {onSelect, onToggle}) {
   table.tBodies[0].onclick = (event) => {
     const tr = event.target.closest("tr[data-element], tr[data-group]");
     if (!tr) return;
@@ -238,14 +270,24 @@ export function markSelected(table, name, {focus = false} = {}) {
   if (!reachable && first) first.tabIndex = 0;
 }
 
-export function renderNodeTable(table, display, {all = false} = {}) {
+const nodeRow = (row, columns) => el("tr", {dataset: {node: row.name}}, columns.map(({key}) =>
+  el("td", {class: key === "name" ? null : "num"}, row.text[key] ?? "")));
+
+export function renderNodeTable(table, display, {all = false, fetchRows = null} = {}) {
   const columns = display.node_columns;
   table.tHead.replaceChildren(el("tr", {}, columns.map(({key, heading}) =>
     el("th", {scope: "col", class: key === "name" ? null : "num"}, heading))));
+  if (display.rows_partial) {
+    windowedBody(table, {
+      total: display.node_total, columns: columns.length, first: display.nodes,
+      fetch: (start, count) => fetchRows({table: "nodes", start, count}),
+      drawRow: (row) => nodeRow(row, columns),
+    });
+    return;
+  }
+  plainBody(table);
   const rows = all ? display.nodes : display.nodes.slice(0, ROW_LIMIT);
-  table.tBodies[0].replaceChildren(...rows.map((row) =>
-    el("tr", {}, columns.map(({key}) =>
-      el("td", {class: key === "name" ? null : "num"}, row.text[key] ?? "")))));
+  table.tBodies[0].replaceChildren(...rows.map((row) => nodeRow(row, columns)));
   if (rows.length < display.nodes.length) {
     table.tBodies[0].append(moreRow(columns.length, rows.length, display.nodes.length,
                                     () => renderNodeTable(table, display, {all: true})));

@@ -24,18 +24,62 @@ export function saveTool(key, patch) {
   save({tools: {...all, [key]: {...(all[key] || {}), ...patch}}});
 }
 
+// A <select> offers at most this many options; a bigger list gets a find box beside it
+// that picks which ones (a node list of a big network would cost the page seconds).
+const SELECT_OPTIONS = 100;
+
 /**
  * Refill a <select> with `options` ([{value, label}]), keeping `wanted` (or the
  * current value) when it is still offered, else the first option (or `fallback`).
  */
 export function fillSelect(select, options, wanted, fallback = null) {
   const keep = wanted ?? select.value;
-  select.replaceChildren(...options.map((o) => el("option", {value: o.value}, o.label)));
   const values = options.map((o) => o.value);
-  if (values.includes(keep)) select.value = keep;
-  else if (fallback !== null && values.includes(fallback)) select.value = fallback;
-  else if (values.length) select.value = values[0];
+  const chosen = values.includes(keep) ? keep
+    : fallback !== null && values.includes(fallback) ? fallback : values[0];
+  select._options = options;
+  const finder = findBox(select, options.length > SELECT_OPTIONS);
+  offer(select, options, chosen, finder ? finder.value : "");
   return select.value;
+}
+
+/** Put the options matching `typed` (at most SELECT_OPTIONS, and `chosen`) in `select`. */
+function offer(select, options, chosen, typed = "") {
+  const needle = typed.trim().toLowerCase();
+  let shown = options;
+  if (options.length > SELECT_OPTIONS) {
+    shown = options.filter((o) => o.value === chosen ||
+      (!needle || String(o.value).toLowerCase().includes(needle))).slice(0, SELECT_OPTIONS + 1);
+    if (chosen !== undefined && !shown.some((o) => o.value === chosen)) {
+      shown.unshift(options.find((o) => o.value === chosen));
+    }
+  }
+  select.replaceChildren(...shown.map((o) => el("option", {value: o.value}, o.label)));
+  if (chosen !== undefined) select.value = chosen;
+}
+
+/** The find box of a long select (made once, shown only while the list is long). */
+function findBox(select, wanted) {
+  let box = select._finder;
+  if (!box && wanted) {
+    box = el("input", {type: "search", class: "select-find", placeholder: "find…",
+                       "aria-label": `find in ${select.getAttribute("aria-label") || select.name || "the list"}`});
+    let timer = null;
+    box.addEventListener("input", () => {
+      clearTimeout(timer);
+      timer = setTimeout(() => {
+        const options = select._options || [];
+        const needle = box.value.trim().toLowerCase();
+        const first = options.find((o) => String(o.value).toLowerCase().includes(needle));
+        offer(select, options, needle && first ? first.value : select.value, box.value);
+        select.dispatchEvent(new Event("change", {bubbles: true}));
+      }, 150);
+    });
+    select.before(box);
+    select._finder = box;
+  }
+  if (box) box.hidden = !wanted;
+  return wanted ? box : null;
 }
 
 /** The facts of a tool's answer as a definition list; a flag is a word and a mark too. */

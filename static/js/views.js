@@ -9,8 +9,12 @@ import {el, insertSvg, placeholder} from "./dom.js";
  */
 // Names offered as checkboxes; a larger circuit gets a name box to add the others.
 const PICKER_NAMES = 40;
+// Suggestions the name box offers at once.
+const SUGGESTIONS = 30;
 
-export function renderPicker(fieldset, allNames, {shown, selected, limit, onChange}) {
+export function renderPicker(fieldset, allNames, {shown, selected, limit, onChange,
+                                                 total = allNames.length,
+                                                 accepts = (name) => allNames.includes(name)}) {
   const legend = fieldset.querySelector("legend");
   let names = allNames;
   if (allNames.length > PICKER_NAMES) {
@@ -35,18 +39,25 @@ export function renderPicker(fieldset, allNames, {shown, selected, limit, onChan
               input, name);
   });
   const extra = [];
-  if (names.length < allNames.length) {
+  if (names.length < total) {
+    // A name box, its suggestions the few names that start with what was typed (a
+    // list of every name of a big circuit would cost the page seconds).
     const listId = "picker-names";
     const input = el("input", {type: "text", list: listId, class: "picker-add", size: 12,
-                               placeholder: `+ ${allNames.length - names.length} more…`,
+                               placeholder: `+ ${total - names.length} more…`,
                                "aria-label": "add an element to the phasor diagram by name"});
+    const list = el("datalist", {id: listId});
+    input.addEventListener("input", () => {
+      const typed = input.value.trim().toLowerCase();
+      const hits = typed ? allNames.filter((n) => n.toLowerCase().startsWith(typed)).slice(0, SUGGESTIONS) : [];
+      list.replaceChildren(...hits.map((n) => el("option", {value: n})));
+    });
     input.addEventListener("change", () => {
       const name = input.value.trim();
-      if (allNames.includes(name) && name !== selected && !shown.includes(name) &&
+      if (accepts(name) && name !== selected && !shown.includes(name) &&
           shown.length + 1 < limit) onChange([...shown, name]);
     });
-    extra.push(input, el("datalist", {id: listId},
-                         allNames.filter((n) => !names.includes(n)).map((n) => el("option", {value: n}))));
+    extra.push(input, list);
   }
   fieldset.replaceChildren(legend, ...boxes, ...extra);
 }

@@ -55,3 +55,35 @@ def test_non_loopback_host_warns(monkeypatch, capsys):
     monkeypatch.setattr(uvicorn.Server, "run", fake_run)
     assert serve.serve_main(parse("--host", "0.0.0.0", "--port", "8123")) == 0
     assert "warning" in capsys.readouterr().err
+
+
+def _settings_of(monkeypatch, *argv):
+    """The Settings ``serve`` would run with (the app is built, no socket is opened)."""
+    import uvicorn
+
+    from phasorbench.web import app as web_app
+    seen = {}
+    real = web_app.create_app
+
+    def capture(settings):
+        seen["settings"] = settings
+        return real(settings)
+    monkeypatch.setattr(web_app, "create_app", capture)
+    monkeypatch.setattr(uvicorn.Server, "run", lambda self, sockets=None: setattr(self, "started", True))
+    assert serve.serve_main(parse("--port", "8123", *argv)) == 0
+    return seen["settings"]
+
+
+def test_limits_are_serve_flags(monkeypatch):
+    # A 300×300 benchmark mesh: 270,000 elements in 12.2 MB (benchmarks/mesh.py); one
+    # flag lets it through: the body limit grows with the element limit.
+    one = _settings_of(monkeypatch, "--max-elements", "300000")
+    assert one.max_elements == 300_000 and one.max_body_bytes >= 12.2e6
+    both = _settings_of(monkeypatch, "--max-body-mb", "64", "--workers", "2")
+    assert both.max_body_bytes == 64 * 2 ** 20 and both.solve_workers == 2
+
+
+@pytest.mark.parametrize("flag", ["--max-elements", "--max-body-mb", "--workers"])
+def test_limits_must_be_positive(flag, capsys):
+    assert serve.serve_main(parse(flag, "0", "--port", "8123")) == 2
+    assert flag in capsys.readouterr().err

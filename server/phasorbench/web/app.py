@@ -98,6 +98,12 @@ async def _internal_error(request: Request, exc: Exception):
     return api.error_response(500, api.INTERNAL_ERROR)
 
 
+def _load_core() -> None:
+    """Import the solve path now, so the first request does not wait for it."""
+    from .. import accuracy, checks, results, solver, superposition  # noqa: F401
+    from ..language import parser  # noqa: F401
+
+
 def create_app(settings: Settings | None = None) -> FastAPI:
     """Build the server: routes, guards, templates, static files, the solve pool.
 
@@ -109,6 +115,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         if not folder.is_dir():
             raise RuntimeError(f"phasorbench web: folder not found: {folder}")
     pin_loaded()             # one BLAS thread per solve worker (see blas.py)
+    _load_core()
     pool = ThreadPoolExecutor(max_workers=settings.solve_workers,
                               thread_name_prefix="phasorbench-solve")
 
