@@ -6,7 +6,10 @@ from __future__ import annotations
 import math
 import time
 
-from .test_tools_api import api  # noqa: F401  (the threaded client fixture)
+import pytest
+
+from .conftest import make_app
+from .test_tools_api import ThreadedApi, api  # noqa: F401  (the threaded client fixture)
 
 DIVIDER = """frequency 50 Hz
 V1: voltage in -> 0 10 V
@@ -78,3 +81,16 @@ def test_job_progress_answer_and_cancel(api):  # noqa: F811
             break
         time.sleep(0.05)
     assert r.json()["state"] == "cancelled"
+
+
+@pytest.mark.slow
+def test_server_scheduler_setting_gives_the_same_numbers(bench_samples):
+    distributed = pytest.importorskip("dask.distributed")
+    body = {"netlist": DIVIDER, "probes": ["V(out)"], "runs": 2500, "seed": 4}
+    here = ThreadedApi(make_app(bench_samples)).post("/api/tolerance", json=body).json()
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  host="127.0.0.1", dashboard_address=None) as cluster:
+        app = make_app(bench_samples, scheduler=cluster.scheduler_address)
+        there = ThreadedApi(app).post("/api/tolerance", json=body).json()
+    # common practice, no source: the server's scheduler setting changes where, not what
+    assert there == here and there["runs"] == 2500

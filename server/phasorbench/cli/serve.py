@@ -31,6 +31,8 @@ def add_serve_arguments(parser: argparse.ArgumentParser) -> None:
                         help=SETTINGS_HELP["max_body_bytes"])
     parser.add_argument("--workers", type=int, default=SOLVE_WORKERS, metavar="N",
                         help=SETTINGS_HELP["solve_workers"])
+    parser.add_argument("--scheduler", metavar="ADDRESS", default=None,
+                        help=SETTINGS_HELP["scheduler"])
     parser.add_argument("--allow-host", action="append", default=[], metavar="NAME",
                         help="also accept this name in the Host header (when serving beyond "
                              "loopback); may be repeated")
@@ -86,7 +88,8 @@ def serve_main(args) -> int:
                         max_body_bytes=(int(body_mb * 2**20) if body_mb is not None
                                         else body_limit(max_elements)),
                         solve_workers=workers,
-                        allowed_hosts=tuple(getattr(args, "allow_host", []) or ()))
+                        allowed_hosts=tuple(getattr(args, "allow_host", []) or ()),
+                        scheduler=getattr(args, "scheduler", None))
     if sample and not (settings.samples_dir / f"{sample}.circuit").is_file():
         print(f"phasorbench serve: no sample named '{sample}' in {settings.samples_dir}",
               file=sys.stderr)

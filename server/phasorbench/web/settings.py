@@ -89,6 +89,8 @@ class Settings:
     formula_seconds: float = FORMULA_SECONDS
     allowed_hosts: tuple[str, ...] = ()
     initial_sample: str | None = None
+    #: A Dask scheduler's address for the tolerance study's chunks (None: in-process).
+    scheduler: str | None = None
     static_dir: Path = field(default_factory=lambda: _folder("PHASORBENCH_STATIC", _REPO_ROOT / "static"))
     templates_dir: Path = field(
         default_factory=lambda: _folder("PHASORBENCH_TEMPLATES", _REPO_ROOT / "templates"))
@@ -113,4 +115,6 @@ SETTINGS_HELP = {
                      "gets 422; the body limit grows with it"),
     "max_view_elements": f"elements per waveform or phasor request (default {MAX_VIEW_ELEMENTS})",
     "solve_workers": f"worker threads for solving (default {SOLVE_WORKERS})",
+    "scheduler": "address of a Dask scheduler that runs the tolerance studies' chunks "
+                 "(the 'cluster' extra; default: none, in-process)",
 }

@@ -61,9 +61,14 @@ def tolerance_answer(text: str, ask: dict, settings: Settings, progress=None,
     from ..studies.tolerance import run_tolerance
     circuit = _read(text, settings)
     check_work(circuit, ask)
+    chunks = None
+    if settings.scheduler:              # the server's setting: chunks on a Dask cluster
+        from ..studies.cluster import cluster_chunks
+        chunks = cluster_chunks(circuit, ask["probes"], ask.get("limits") or (),
+                                settings.scheduler)
     result = run_tolerance(circuit, ask["probes"], ask.get("runs"), ask.get("seed"),
                            ask.get("worst_case", False), ask.get("limits") or (),
-                           progress=progress, cancel=cancel)
+                           progress=progress, cancel=cancel, chunks=chunks)
     if ask.get("display"):
         from ..presentation.cautions import TOLERANCE_NOTE
         from ..presentation.studies.tolerance import view
