@@ -233,3 +233,32 @@ def test_coupled_inductor_impedance_is_its_own_jwl():
     z = r["elements"]["L1"]["impedance"]
     assert complex(z["re"], z["im"]) == pytest.approx(2j * math.pi * 50 * 40e-3, rel=1e-14)
     assert r["couplings"]["K"]["m_h"] == pytest.approx(0.9 * math.sqrt(40e-3 * 10e-3))
+
+
+def test_a_supply_reports_the_current_and_power_it_delivers():
+    # Ohm's law on 230 V across 4 + j3 Ω (any circuits textbook): I = 46 A ∠−36.87°,
+    # S = V·I* = 8464 W + j6348 var taken by the load; the supply delivers exactly that,
+    # its passive-sign values being the negatives
+    r = solve("frequency 50 Hz\nV1: voltage a -> 0 230\nZ1: impedance a -> 0 4 + j3\n")
+    v1 = r["elements"]["V1"]
+    d = v1["delivered"]
+    assert d["current"]["mag"] == pytest.approx(46, rel=1e-12)
+    assert d["current"]["deg"] == pytest.approx(-36.8698976458, abs=1e-9)
+    assert d["p_w"] == pytest.approx(8464, rel=1e-12) == -v1["p_w"]
+    assert d["q_var"] == pytest.approx(6348, rel=1e-12) == -v1["q_var"]
+    assert "delivered" not in r["elements"]["Z1"]
+
+
+def test_a_three_phase_supply_delivers_its_line_currents():
+    # balanced wye, 400 V line on 16 + j12 Ω per phase (check-values C22, textbook
+    # three-phase relations): line current 230.94/20 = 11.547 A lagging its phase
+    # voltage by 36.87°; the block delivers P = 6400 W, Q = 4800 var
+    r = solve("frequency 50 Hz\nG: voltage3 A B C -> 0 400 V line\n"
+              "M: load3 wye A B C -> 0 16 + j12 ohm\n")
+    g = r["groups"]["G"]["delivered"]
+    assert g["p_w"] == pytest.approx(6400, rel=1e-9)
+    assert g["q_var"] == pytest.approx(4800, rel=1e-9)
+    a = g["line_current"]["a"]
+    assert a["mag"] == pytest.approx(400 / math.sqrt(3) / 20, rel=1e-9)
+    assert a["deg"] == pytest.approx(-36.8698976458, abs=1e-7)
+    assert "delivered" not in r["groups"]["M"]

@@ -108,12 +108,22 @@ def _contract(solution: Solution) -> dict:
     z_dicts = phasor_dicts(np.nan_to_num(z))
     z_ok = np.isfinite(z).tolist()
     v_dicts, i_dicts = phasor_dicts(v), phasor_dicts(i)
+    supplies = [k for k, e in enumerate(elements)
+                if e.kind in SOURCE_KINDS or e.kind in CONTROLLED_KINDS]
+    # what a supply delivers: the current out of its `from` terminal into the circuit
+    # and the power it gives, both the negatives of the passive-sign values (0 − x
+    # keeps a zero's sign positive, so its angle stays 0°)
+    delivered_i = dict(zip(supplies, phasor_dicts(0.0 - i[supplies]))) if supplies else {}
 
     digits = (np.asarray(solution.digits).astype(np.int64) if solution.digits is not None
               else np.full(len(elements), 15, dtype=np.int64))
     floor = zero_power_floor(s_list)
     out_elements = _element_entries(solution, elements, power, s_list, p_list, q_list,
                                     v_dicts, i_dicts, z_dicts, z_ok, digits, floor)
+    for k, current in delivered_i.items():
+        e = elements[k]
+        out_elements[e.name]["delivered"] = {"current": current, "p_w": 0.0 - p_list[k],
+                                             "q_var": 0.0 - q_list[k]}
 
     total = complex(power.sum()) if len(power) else 0j
     apparent = float(np.abs(power).sum())
@@ -313,11 +323,17 @@ def _group(group, result: dict, solution: Solution, floor: float = 0.0) -> dict:
         "voltage_unbalance": (abs(v2) / abs(v1) if abs(v1) > 0 else None),
         "line": group.line,
     }
+    supply = group.kind == "voltage3"
+    if supply:
+        out["delivered"] = {"p_w": 0.0 - p, "q_var": 0.0 - q}
     if group.connection == "wye":
         out["star"] = group.neutral if group.neutral is not None else f"{group.name}.n"
         out["neutral_current"] = phasor_dict(complex(i.sum()))
-        out["line_current"] = dict(zip("abc", phasor_dicts(i)))
+        line_currents = i
     else:
         line_currents = np.array([i[0] - i[2], i[1] - i[0], i[2] - i[1]])
-        out["line_current"] = dict(zip("abc", phasor_dicts(line_currents)))
+    out["line_current"] = dict(zip("abc", phasor_dicts(line_currents)))
+    if supply:
+        # the line currents the block sends out into the lines
+        out["delivered"]["line_current"] = dict(zip("abc", phasor_dicts(0.0 - line_currents)))
     return out

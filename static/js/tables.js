@@ -178,7 +178,7 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
     if (!unit.members) {
       drawn.push(unit.row);
       body.append(cells(el("tr", {dataset: {element: unit.row.name}, "aria-level": hasGroups ? "1" : null}),
-                        unit.row, columns, folded));
+                        unit.row, columns, folded, {sub: unit.row.sub || {}}));
       continue;
     }
     const isOpen = open.has(unit.row.name);
@@ -187,7 +187,7 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
       drawn.push(row);
       const tr = el("tr", {class: "phase", dataset: {element: row.name, inGroup: unit.row.name},
                            "aria-level": "2", hidden: !isOpen});
-      body.append(cells(tr, row, columns, folded));
+      body.append(cells(tr, row, columns, folded, {sub: row.sub || {}}));
     }
   }
   if (!units.length) body.append(el("tr", {class: "empty"}, el("td", {colspan: columns.length},

@@ -151,11 +151,14 @@ def test_element_rows_keep_the_raw_numbers():
     result = solve_text(RL_AND_C)
     for row in fmt.element_rows(result):
         el = result["elements"][row["name"]]
-        # common practice, no source: sorting numbers are the contract's, untouched
-        assert row["values"]["p_w"] == el["p_w"] and row["values"]["s_va"] == el["s_va"]
+        # common practice, no source: sorting numbers are the contract's, untouched —
+        # for a source the delivered ones it shows (the negatives of the passive sign)
+        sign = -1.0 if "delivered" in el else 1.0
+        assert row["values"]["p_w"] == sign * el["p_w"] and row["values"]["s_va"] == el["s_va"]
         assert math.isclose(row["values"]["i_mag"], el["current"]["mag"], rel_tol=1e-12)
         assert row["values"]["v_deg"] == el["voltage"]["deg"]
         assert row["secondary"] is None
+        assert bool(row["sub"]) == (el["kind"] == "voltage")
 
 
 def test_round_off_power_prints_as_zero():
@@ -197,3 +200,12 @@ def test_node_rows():
     assert rows["a"]["text"]["rect"] == "230 + j0 V"
     assert rows["a"]["values"]["v_mag"] == 230.0
     assert sorted(rows["a"]["text"]) == sorted(k for k, _ in fmt.NODE_COLUMNS)
+
+
+def test_extreme_finite_values_format_without_error():
+    # IEEE 754 binary64: the largest finite double and subnormals are ordinary values;
+    # their text keeps the value's own digits (the decimal strings are Python's repr)
+    assert fmt.eng(1.7976931348623157e308, "Ω") == "1.798e308 Ω"
+    assert fmt.eng(2.22507e-313, "S") == "2.225e-313 S"
+    assert fmt.eng(5e-324, "V") == "4.941e-324 V"
+    assert fmt.eng(-1.7976931348623157e308, "W") == "-1.798e308 W"

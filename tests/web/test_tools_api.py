@@ -331,8 +331,15 @@ def test_solve_display_has_block_rows_with_totals(api):
     assert m["text"]["p"] == "6.4 kW" and m["text"]["q"] == "4.8 kvar"
     assert m["text"]["s"] == "8 kVA" and m["text"]["pf"] == "0.8 lagging"
     assert body["groups"]["M"]["neutral_current"]["mag"] <= 1e-9       # C22: I_N abs ≤ 1e-9 A
-    assert m["text"]["current"] == "0 A"                                 # round-off reads 0
-    assert m["text"]["voltage"] == "0 %"          # balanced: no unbalance (formula V₂ = 0)
+    assert m["text"]["neutral"] == "0 A"                                 # round-off reads 0
+    assert m["text"]["unbalance"] == "0 %"        # balanced: no unbalance (formula V₂ = 0)
+    # a block has no one voltage or current: those cells stay empty, the second line
+    # under its terminals says unbalance and neutral current
+    assert m["text"]["voltage"] == m["text"]["current"] == ""
+    assert m["sub"]["terminals"] == "V₂/V₁ 0 % · I_N 0 A"
+    # the supply block shows what it delivers, like its phases (positive when supplying)
+    g = rows["G"]
+    assert g["values"]["p_w"] == pytest.approx(6400, rel=1e-9) and g["sub"]["p"] == "delivered total"
     assert m["text"]["terminals"] == "A B C → 0" and m["sub"]["kind"] == "wye"
     # The block rows carry every branch column, so the table can place them as rows.
     columns = {c["key"] for c in body["display"]["element_columns"]}
@@ -421,8 +428,11 @@ def test_the_plant_sample_solves_with_block_rows():
     result = solve_text((ROOT / "samples" / "plant-three-phase.circuit").read_text())
     for row in group_rows(result):
         members = [result["elements"][n] for n in row["elements"]]
-        assert row["values"]["p_w"] == pytest.approx(sum(e["p_w"] for e in members), rel=1e-9)
-        assert row["values"]["q_var"] == pytest.approx(sum(e["q_var"] for e in members),
+        # a supply block's row shows the delivered totals: the passive ones negated
+        sign = -1.0 if result["groups"][row["name"]]["kind"] == "voltage3" else 1.0
+        assert row["values"]["p_w"] == pytest.approx(sign * sum(e["p_w"] for e in members),
+                                                     rel=1e-9)
+        assert row["values"]["q_var"] == pytest.approx(sign * sum(e["q_var"] for e in members),
                                                        abs=1e-9 * row["values"]["s_va"])
 
 

@@ -6,8 +6,8 @@ exactly the strings of the page and the sheet.
 
 from __future__ import annotations
 
-from ..presentation.formatting import (ELEMENT_COLUMNS, NODE_COLUMNS, ROUND_OFF, eng, element_rows, node_rows,
-                         power_factor)
+from ..presentation.display import group_detail, group_rows
+from ..presentation.formatting import ELEMENT_COLUMNS, NODE_COLUMNS, eng, element_rows, node_rows
 
 
 def _table(headings: list[str], rows: list[list[str]], right: set[int]) -> list[str]:
@@ -34,6 +34,8 @@ def header_lines(result: dict) -> list[str]:
     lines.append(f"power balance (sum of S over all elements): "
                  f"{balance['p_w']:.3g} W {balance['q_var']:+.3g} var, "
                  f"{balance.get('relative', 0.0):.1e} of total |S|: {state}")
+    lines.append("sources (marked delivered): the current out of their first terminal "
+                 "into the circuit, P and Q delivered (> 0 when supplying)")
     refs = result.get("references") or []
     if refs:
         lines.append("own reference nodes of isolated parts: " + ", ".join(refs))
@@ -51,6 +53,10 @@ def result_table(result: dict) -> str:
     branch_rows = []
     for row in element_rows(result):
         branch_rows.append([row["text"][k] for k, _ in columns])
+        if row.get("sub"):
+            # a source: the line below says its I, P and Q are the delivered ones
+            keys = [k for k, _ in columns]
+            branch_rows.append([row["sub"].get(k, "") for k in keys])
         if row.get("secondary"):
             cells = [""] * len(columns)
             cells[1] = "  secondary"
@@ -60,23 +66,8 @@ def result_table(result: dict) -> str:
             cells[4] = row["secondary"]["current"]
             branch_rows.append(cells)
     out += _table([h for _, h in columns], branch_rows, set(range(3, len(columns))))
-    groups = result.get("groups") or {}
-    if groups:
-        out.append("")
-        heading = ["Group", "Kind", "P", "Q", "|S|", "PF", "V unbalance"]
-        # The element rows' round-off floor, so a balanced resistive bank shows 0 var, not
-        # 177.6 fvar.
-        floor = ROUND_OFF * max([abs(e.get("s_va") or 0.0) for e in
-                                 result["elements"].values()] + [0.0])
-        group_rows = []
-        for name, g in groups.items():
-            vuf = g.get("voltage_unbalance")
-            group_rows.append([
-                name, f"{g['kind']} {g['connection']}", eng(g["p_w"], "W", floor=floor),
-                eng(g["q_var"], "var", floor=floor), eng(g["s_va"], "VA", floor=floor),
-                power_factor(g["pf"], g["pf_sense"]),
-                "—" if vuf is None else f"{100 * vuf:.3f} %"])
-        out += _table(heading, group_rows, {2, 3, 4, 5, 6})
+    if result.get("groups"):
+        out += _group_lines(result)
     totals = result.get("rms_totals")
     if totals:
         shown = ", ".join(eng(h["frequency_hz"], "Hz") for h in result.get("harmonics", []))
@@ -89,3 +80,30 @@ def result_table(result: dict) -> str:
                  eng(t["s_va"], "VA"), f"{t['pf']:.4f}"] for name, t in totals.items()]
         out += _table(heading, rows, {1, 2, 3, 4, 5})
     return "\n".join(out) + "\n"
+
+
+def _group_lines(result: dict) -> list[str]:
+    """The three-phase blocks: totals, then each block's line currents, line-to-line
+    voltages and sequence values (the three-phase view's own lists)."""
+    out = [""]
+    heading = ["Block", "Kind", "Lines", "P", "Q", "|S|", "PF", "V unbalance", "Neutral"]
+    rows = []
+    for row in group_rows(result):
+        t = row["text"]
+        supply = row["sub"].get("p") == "delivered total"
+        rows.append([t["name"], f"{t['kind']} {row['connection']}", t["terminals"],
+                     t["p"], t["q"], t["s"], t["pf"], t["unbalance"], t["neutral"]])
+        if supply:
+            rows.append(["", "", "", "delivered", "delivered", "", "", "", ""])
+    out += _table(heading, rows, {3, 4, 5, 6, 7, 8})
+    for name in result["groups"]:
+        detail = group_detail(result, name)
+        out += ["", detail["heading"]]
+        out += _table(["Line", "Line current", "Pair", "Line-to-line voltage"],
+                      [[x["line"], x["current"], x["pair"], x["voltage"]]
+                       for x in detail["lines"]], {1, 3})
+        out += _table(["Sequence", "Voltage", "Current"],
+                      [[x["name"], x["voltage"], x["current"]] for x in detail["sequence"]],
+                      {1, 2})
+        out.append(detail["note"])
+    return out

@@ -237,20 +237,28 @@ def group_rows(result: dict) -> list[dict]:
     ``{"name", "kind", "connection", "elements", "values": {...}, "text": {...},
     "sub": {...}}``: ``values`` holds the totals (``p_w``, ``q_var``, ``s_va``, ``pf``,
     ``voltage_unbalance``; the phasor keys are None) for sorting; ``text`` the strings of
-    every branch column (the voltage column says the voltage unbalance, the current column
-    the neutral current); ``sub`` a second line under some cells.
+    every branch column — the |V| and |I| cells stay empty (a block has no one voltage or
+    current; its phases' rows have them) — plus ``unbalance`` and ``neutral``, which the
+    second line under the terminals cell says; ``sub`` that second line under some
+    cells. A ``voltage3`` supply block's totals are the P and Q it delivers, like its
+    phases' rows (see ``formatting.element_rows``).
     """
     s_floor, _, i_floor = _floors(result)
     rows = []
     for name, g in (result.get("groups") or {}).items():
+        supply = g.get("delivered") if isinstance(g.get("delivered"), dict) else None
+        seen = {**g, "p_w": supply["p_w"], "q_var": supply["q_var"]} if supply else g
         values = {f"{q}_{k}": None for q in ("v", "i", "z") for k in ("mag", "deg", "re", "im")}
-        values.update({key: g.get(key) for key in ("p_w", "q_var", "s_va", "pf")})
+        values.update({key: seen.get(key) for key in ("p_w", "q_var", "s_va", "pf")})
         values["voltage_unbalance"] = g.get("voltage_unbalance")
         connection = g.get("connection", "")
         # The magnitude only: the row stays as narrow as a phase's row (the angle is in
         # the three-phase view).
         neutral = None if _no_neutral(name, g) else eng(_mag(g["neutral_current"]), "A",
                                                         floor=i_floor)
+        unbalance = _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR)
+        about = f"V₂/V₁ {unbalance}" + (f" · I_N {neutral}" if neutral else " · no neutral")
+        total = "delivered total" if supply else "block total"
         rows.append({
             "name": name, "kind": g.get("kind"), "connection": connection,
             "elements": list(g.get("elements", [])), "lines": list(g.get("lines", [])),
@@ -258,19 +266,23 @@ def group_rows(result: dict) -> list[dict]:
             "values": values,
             "text": {"name": name, "kind": g.get("kind", ""),
                      "terminals": _group_terminals(name, g),
-                     "voltage": _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR),
-                     "current": neutral or MISSING,
+                     "voltage": "", "current": "",
+                     "unbalance": unbalance, "neutral": neutral or MISSING,
                      "impedance_rect": "", "impedance_polar": "",
-                     "p": eng(g.get("p_w"), "W", floor=s_floor),
-                     "q": eng(g.get("q_var"), "var", floor=s_floor),
+                     "p": eng(seen.get("p_w"), "W", floor=s_floor),
+                     "q": eng(seen.get("q_var"), "var", floor=s_floor),
                      "s": eng(g.get("s_va"), "VA", floor=s_floor),
                      "pf": power_factor(g.get("pf"), g.get("pf_sense"))},
             "sub": {"name": f"{len(g.get('elements', []))} phases", "kind": connection,
-                    "voltage": "unbalance V₂/V₁",
-                    "current": "neutral |I_N|" if neutral else "no neutral",
-                    "p": "block total"},
+                    "terminals": about, "p": total, "q": total if supply else ""},
         })
     return rows
+
+
+def _negated(ph: dict) -> dict:
+    """A phasor dict turned through 180° (a delivered current from a passive-sign one)."""
+    re, im = -float(ph.get("re", 0.0)) + 0.0, -float(ph.get("im", 0.0)) + 0.0
+    return {"re": re, "im": im, "mag": ph.get("mag"), "deg": math.degrees(math.atan2(im, re))}
 
 
 def _turns(g: dict) -> str:
@@ -289,20 +301,27 @@ def group_detail(result: dict, name: str) -> dict:
     members = set(g.get("elements", []))
     phases = element_rows(result, [n for n in result["elements"] if n in members])
     pairs = ("ab", "bc", "ca")
-    line_current, line_voltage = g.get("line_current", {}), g.get("line_voltage", {})
+    supply = g.get("delivered") if isinstance(g.get("delivered"), dict) else None
+    # a supply block lists what it delivers: line currents out into the lines
+    line_current = (supply or {}).get("line_current") or g.get("line_current", {})
+    line_voltage = g.get("line_voltage", {})
+    seq_current = {key: (_negated(ph) if supply else ph)
+                   for key, ph in g.get("sequence_current", {}).items()}
     lines = [{"line": line, "current": phasor(line_current.get(phase), "A", floor=i_floor),
               "pair": f"{g['lines'][k]}–{g['lines'][(k + 1) % 3]}",
               "voltage": phasor(line_voltage.get(pairs[k]), "V", floor=v_floor)}
              for k, (phase, line) in enumerate(zip("abc", g.get("lines", [])))]
     sequence = [{"name": label,
                  "voltage": phasor(g["sequence_voltage"][key], "V", floor=v_floor),
-                 "current": phasor(g["sequence_current"][key], "A", floor=i_floor)}
+                 "current": phasor(seq_current[key], "A", floor=i_floor)}
                 for key, label in _SEQUENCE_NAMES]
     what = "branch" if g.get("connection") == "delta" else "phase"
     missing = _no_neutral(name, g)
     facts = [
-        {"term": "P total", "value": eng(g.get("p_w"), "W", floor=s_floor)},
-        {"term": "Q total", "value": eng(g.get("q_var"), "var", floor=s_floor)},
+        {"term": "P delivered" if supply else "P total",
+         "value": eng((supply or g).get("p_w"), "W", floor=s_floor)},
+        {"term": "Q delivered" if supply else "Q total",
+         "value": eng((supply or g).get("q_var"), "var", floor=s_floor)},
         {"term": "|S| total", "value": eng(g.get("s_va"), "VA", floor=s_floor)},
         {"term": "power factor", "value": power_factor(g.get("pf"), g.get("pf_sense"))},
         {"term": "voltage unbalance V₂/V₁",
@@ -318,7 +337,9 @@ def group_detail(result: dict, name: str) -> dict:
                  "phase a the reference (a = 1∠120°), labelled for the "
                  f"{g.get('rotation', 'abc')} rotation (positive turns {_turns(g)}); "
                  "the unbalance is negative over positive of the line voltages by the "
-                 "same labels; totals use the passive sign."),
+                 "same labels; " + ("currents, P and Q are the ones the supply delivers "
+                                    "(out into the lines)." if supply else
+                                    "totals use the passive sign.")),
         "phases": phases, "lines": lines, "sequence": sequence, "facts": facts,
     }
 

@@ -86,9 +86,12 @@ def _decimals_for(mantissa: float, digits: int) -> int:
 
 def _split(value: float, digits: int) -> tuple[float, int]:
     """Round to ``digits`` significant digits and split into (mantissa, exponent of 1000)."""
-    rounded = float(f"{value:.{digits - 1}e}")
-    exp3 = 3 * math.floor(math.log10(abs(rounded)) / 3)
-    return rounded / 10.0**exp3, exp3
+    # read from the decimal text: rounding 1.7976931348623157e308 to 4 digits overflows
+    # a float, and a subnormal's power of ten underflows to 0
+    mantissa, exponent = f"{value:.{digits - 1}e}".split("e")
+    exponent = int(exponent)
+    exp3 = 3 * math.floor(exponent / 3)
+    return float(mantissa) * 10 ** (exponent - exp3), exp3
 
 
 def eng(value, unit: str = "", digits: int = 4, floor: float | None = None) -> str:
@@ -331,6 +334,10 @@ def _limited(text: str, digits: int) -> str:
     return text if digits >= SHOWN_DIGITS or text == MISSING else LIMITED + text
 
 
+#: The second line under a supply's cells: its current and power are the delivered ones.
+DELIVERED_SUB = {"current": "delivered", "p": "delivered", "q": "delivered"}
+
+
 def element_rows(result: dict, names=None) -> list[dict]:
     """One row per element of a contract dict, in the circuit's order (or, given
     ``names``, of those elements in that order: a window of a big table).
@@ -340,7 +347,11 @@ def element_rows(result: dict, names=None) -> list[dict]:
     (``v_mag``, ``v_deg``, ``v_re``, ``v_im``, the same for ``i_`` and ``z_``, ``p_w``,
     ``q_var``, ``s_va``, ``pf``; None where absent) for sorting; ``text`` holds
     the display string of every column of `ELEMENT_COLUMNS`. Powers below 1e-12 of the
-    circuit's largest |S| show as 0, likewise voltages and currents. An element whose
+    circuit's largest |S| show as 0, likewise voltages and currents. A source
+    (independent or controlled) shows the current it delivers (out of its ``from``
+    terminal into the circuit) and the power it delivers as positive, from its
+    ``delivered`` field, in ``text`` and ``values`` alike; its ``sub`` holds the
+    ``DELIVERED_SUB`` labels (other rows: ``{}``). An element whose
     solve trusts fewer than `SHOWN_DIGITS` significant digits (its ``digits`` field) shows
     only those, marked with `LIMITED`; ``values["digits"]`` holds the count.
     """
@@ -352,11 +363,14 @@ def element_rows(result: dict, names=None) -> list[dict]:
     rows = []
     chosen = elements.items() if names is None else ((n, elements[n]) for n in names)
     for name, el in chosen:
+        # a supply's current and power are the ones it delivers (its `delivered` field)
+        supply = el.get("delivered") if isinstance(el.get("delivered"), dict) else None
+        seen = {**el, **supply} if supply else el
         values = {}
         for key, prefix in (("voltage", "v"), ("current", "i"), ("impedance", "z")):
-            values.update(_phasor_values(el.get(key), prefix))
+            values.update(_phasor_values(seen.get(key), prefix))
         for key in ("p_w", "q_var", "s_va", "pf"):
-            values[key] = el.get(key)
+            values[key] = seen.get(key)
         d = shown_digits(el.get("digits"))
         values["digits"] = el.get("digits")
 
@@ -368,11 +382,11 @@ def element_rows(result: dict, names=None) -> list[dict]:
             "kind": el.get("kind", ""),
             "terminals": f"{el.get('from', '?')} → {el.get('to', '?')}",
             "voltage": cut(phasor(el.get("voltage"), "V", d, v_floor, _angle_decimals(d))),
-            "current": cut(phasor(el.get("current"), "A", d, i_floor, _angle_decimals(d))),
+            "current": cut(phasor(seen.get("current"), "A", d, i_floor, _angle_decimals(d))),
             "impedance_rect": rect(el.get("impedance"), "Ω"),
             "impedance_polar": phasor(el.get("impedance"), "Ω"),
-            "p": cut(eng(el.get("p_w"), "W", d, floor=s_floor)),
-            "q": cut(eng(el.get("q_var"), "var", d, floor=s_floor)),
+            "p": cut(eng(seen.get("p_w"), "W", d, floor=s_floor)),
+            "q": cut(eng(seen.get("q_var"), "var", d, floor=s_floor)),
             "s": cut(eng(el.get("s_va"), "VA", d, floor=s_floor)),
             "pf": cut(_pf_text(el, s_floor, d)),
         }
@@ -382,7 +396,8 @@ def element_rows(result: dict, names=None) -> list[dict]:
             secondary = {"voltage": cut(phasor(sec.get("voltage"), "V", d, v_floor, _angle_decimals(d))),
                          "current": cut(phasor(sec.get("current"), "A", d, i_floor, _angle_decimals(d)))}
         rows.append({"name": name, "kind": el.get("kind"), "from": el.get("from"),
-                     "to": el.get("to"), "values": values, "text": text, "secondary": secondary})
+                     "to": el.get("to"), "values": values, "text": text, "secondary": secondary,
+                     "sub": dict(DELIVERED_SUB) if supply else {}})
     return rows
 
 

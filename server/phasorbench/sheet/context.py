@@ -99,7 +99,11 @@ def _assumptions(result: dict) -> list[dict]:
          "Passive sign convention: S = P + jQ is the power into the element; P, Q > 0 is "
          "taken, < 0 delivered, so a source feeding the circuit shows negative P. "
          "PF = |P|/|S|: a passive element is lagging when it takes reactive power (Q > 0); "
-         "a source is quoted by the load it feeds (lagging when it delivers Q)."),
+         "a source is quoted by the load it feeds (lagging when it delivers Q). The branch "
+         "table and the phasor diagrams show a source (independent or controlled) as its "
+         "supplier reads it: the current it delivers, out of its first terminal into the "
+         "circuit, and the P and Q it delivers, positive when it supplies (marked "
+         "“delivered”); the JSON keeps the passive sign and adds these as `delivered`."),
         ("Ground",
          "Node 0 (written 0 or gnd) is the reference at 0 V; node voltages are measured "
          "from it."),

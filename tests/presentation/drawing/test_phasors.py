@@ -214,3 +214,14 @@ def test_self_contained_markup():
     assert not re.search(r'\sid="', svg)
     assert root.get("viewBox") == "0 0 400 420"
     assert root.get("class") == "pb-phasor"
+
+
+def test_a_source_draws_the_current_it_delivers():
+    # Ohm's law, 230 V on 30 + j40 Ω (check-values C4): the supply delivers the load's
+    # current, 4.6 A at −53.13°, lagging its voltage; the passive-sign one would point
+    # the other way (+126.87°)
+    result = solve_text("frequency 50 Hz\nVs: voltage a -> 0 230 V\nZl: impedance a -> 0 30 + j40 ohm\n")
+    root = _parse(phasor_diagram_svg(result, ["Vs"]))
+    deg, _ = _geometry(_arrows(root)["Vs", "current"])
+    assert abs(deg - (-53.1301)) < 0.01
+    assert any("lags" in words for words in _texts(root))

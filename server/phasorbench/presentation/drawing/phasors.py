@@ -34,6 +34,13 @@ def _phasor(el: dict, key: str) -> complex:
     return complex(ph["re"], ph["im"])
 
 
+def _current(el: dict) -> complex:
+    """The current drawn for an element: a source's is the one it delivers (out of its
+    first terminal into the circuit), every other element's the passive-sign one."""
+    supply = el.get("delivered")
+    return _phasor(supply if isinstance(supply, dict) else el, "current")
+
+
 def _deg(z: complex) -> float:
     return math.degrees(cmath.phase(z))
 
@@ -218,7 +225,8 @@ def phasor_diagram_svg(result: dict, names: Sequence[str], width: int = 520,
     names : sequence of str
         Elements to draw, in order; the first one's V–I angle is annotated. A name not
         in ``result["elements"]`` raises ``ValueError`` (so a typo is not silently an
-        empty picture), as does an empty list. Transformers show their primary port.
+        empty picture), as does an empty list. Transformers show their primary port; a source
+        (independent or controlled) draws the current it delivers (its ``delivered``).
     width, height : int
         Size in px (the picture scales through its viewBox).
 
@@ -237,7 +245,7 @@ def phasor_diagram_svg(result: dict, names: Sequence[str], width: int = 520,
     missing = [n for n in names if n not in elements]
     if missing:
         raise ValueError("no element named " + ", ".join(repr(n) for n in missing))
-    data = [_Pair(n, _phasor(elements[n], "voltage"), n, _phasor(elements[n], "current"), n)
+    data = [_Pair(n, _phasor(elements[n], "voltage"), n, _current(elements[n]), n)
             for n in names]
     return _diagram(result, data, width, height,
                     caption="Phasors at {frequency} ({amps} magnitudes)",
@@ -336,7 +344,8 @@ def three_phase_svg(result: dict, group: str, width: int = 520, height: int = 52
         its line current), labelled by phase, ``V(a)``, ``I(a)``; a delta block draws
         its branch voltages ``V(ab)``, ``V(bc)``, ``V(ca)`` (line to line) with the line
         currents ``I(a)``, ``I(b)``, ``I(c)``, so the angle note of a delta compares
-        ``I(a)`` with ``V(ab)``. Each shaft carries ``data-group``, ``data-phase``
+        ``I(a)`` with ``V(ab)``. A ``voltage3`` supply block draws the line currents it
+        delivers (out into the lines). Each shaft carries ``data-group``, ``data-phase``
         and, when it is an element's own phasor, ``data-element``.
 
     Examples
@@ -352,16 +361,19 @@ def three_phase_svg(result: dict, group: str, width: int = 520, height: int = 52
     if group not in groups:
         raise ValueError(f"no three-phase block named {group!r}")
     g, elements = groups[group], result.get("elements", {})
+    # a supply block draws the line currents it sends out (its `delivered` ones)
+    lines_i = (g["delivered"]["line_current"] if isinstance(g.get("delivered"), dict)
+               and "line_current" in g["delivered"] else g.get("line_current", {}))
     data = []
     for name in g["elements"]:
         el = elements[name]
         phase = name.rsplit(".", 1)[-1]
         line = phase[0]                    # the line a delta branch ab leaves from: a
         if g.get("connection") == "delta":
-            current = complex(g["line_current"][line]["re"], g["line_current"][line]["im"])
+            current = complex(lines_i[line]["re"], lines_i[line]["im"])
             i_data = {"data_group": group, "data_phase": line}
         else:
-            current = _phasor(el, "current")
+            current = _current(el)
             i_data = {"data_element": name, "data_group": group, "data_phase": phase}
         data.append(_Pair(phase, _phasor(el, "voltage"), line, current, f"{group} phase {phase}",
                           {"voltage": {"data_element": name, "data_group": group,
