@@ -41,3 +41,17 @@ def test_the_two_setup_commands_and_ci_agree():
     assert ".venv/bin/python -m pytest" in ci and ".venv/bin/python -m pytest" in README
     assert "phasorbench serve --sample" in README
     assert (ROOT / "samples" / "bakery-feeder.circuit").exists()
+
+
+def test_the_settings_table_names_exactly_the_serve_options():
+    # common practice, no source: README and `serve --help` must not disagree — every
+    # option the table names exists, and every option of serve (but --open and --help)
+    # is in the table
+    import re
+    serve = build_parser()._subparsers._group_actions[0].choices["serve"]
+    options = {o for a in serve._actions for o in a.option_strings if o.startswith("--")}
+    start = README.index("Server settings")
+    table = README[start:README.index("\n\n", README.index("| setting", start))]
+    named = set(re.findall(r"\| `(--[a-z-]+)[^`]*` \|", table))
+    assert named <= options, named - options
+    assert options - {"--open", "--help"} <= named, options - {"--open", "--help"} - named

@@ -87,6 +87,21 @@ def bounded(diagnostics: list[Diagnostic], limit: int = MAX_LISTED) -> list[Diag
                               "listed)", "fix these and check again", severity=severity)]
 
 
+def answer(diagnostics) -> dict:
+    """``{"errors": [...], "warnings": [...]}``: the contract's error items (plus the
+    caret ``length`` and ``severity``), errors in line order (no line last) — the one
+    shape of the API's 422 answers and the command line's ``--json`` on bad input."""
+    def order(d: Diagnostic):
+        return (d.line is None, d.line or 0, d.column or 0)
+
+    def item(d: Diagnostic) -> dict:
+        return {**d.as_dict(), "length": d.length, "severity": d.severity}
+
+    ordered = sorted(diagnostics, key=order)
+    return {"errors": [item(d) for d in ordered if d.severity != "warning"],
+            "warnings": [item(d) for d in ordered if d.severity == "warning"]}
+
+
 class PhasorbenchError(Exception):
     """Base of every error the core raises on purpose."""
 

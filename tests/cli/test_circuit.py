@@ -303,3 +303,32 @@ def test_utf16_with_a_byte_order_mark_is_read(tmp_path):
     path.write_bytes("frequency 50\nV: voltage a -> 0 1\nR: resistor a -> 0 5\n".encode("utf-16"))
     done = run_module("check", str(path))
     assert done.returncode == 0 and "ok: 2 elements" in done.stdout
+
+
+@pytest.mark.parametrize("command", ["solve", "check"])
+def test_json_on_bad_input_is_the_apis_error_shape_on_stdout(capsys, circuit_file, command):
+    # results-contract.md: errors are {"errors": [{"line", "column", "message", "hint"}]}
+    # (the API's 422 body); the text lines still go to stderr and the exit status is 2
+    status, out, err = run_main(capsys, command, "--json", circuit_file(BAD))
+    assert status == 2
+    body = json.loads(out)
+    places = [(e["line"], e["column"]) for e in body["errors"]]
+    assert (4, BAD_COLUMN) in places and any(line == 5 for line, _ in places)
+    assert all(e["message"] and "hint" in e for e in body["errors"])
+    assert ":4:" in err and "error:" in err
+
+
+def test_json_on_a_missing_file_is_still_json(capsys, tmp_path):
+    # results-contract.md: an error of no line has line and column null
+    status, out, err = run_main(capsys, "solve", "--json", str(tmp_path / "none.circuit"))
+    assert status == 2
+    body = json.loads(out)
+    assert body["errors"][0]["line"] is None and "no such file" in body["errors"][0]["message"]
+
+
+def test_check_json_counts_a_good_circuit(capsys, circuit_file):
+    # the GOOD circuit has five elements and nodes 0, a, b, c (circuit-language.md: 0 is a node)
+    status, out, _ = run_main(capsys, "check", "--json", circuit_file(GOOD))
+    body = json.loads(out)
+    assert status == 0 and body["ok"] is True and body["errors"] == []
+    assert body["elements"] == 5 and body["frequency_hz"] == 60.0

@@ -39,7 +39,21 @@ def test_defaults_are_loopback_and_8000():
 
 def test_unknown_sample_is_refused(capsys):
     assert serve.serve_main(parse("--sample", "no-such-sample", "--port", "8123")) == 2
-    assert "no-such-sample" in capsys.readouterr().err
+    err = capsys.readouterr().err
+    assert "no-such-sample" in err
+    # common practice, no source: a refusal lists what would have been accepted
+    from pathlib import Path
+    samples = sorted(p.stem for p in (Path(__file__).parents[2] / "samples").glob("*.circuit"))
+    assert samples and all(name in err for name in samples)
+
+
+def test_open_without_a_browser_says_so(monkeypatch):
+    # Python's webbrowser module: open() returns False when no browser can be started
+    import webbrowser
+    monkeypatch.setattr(webbrowser, "open", lambda url: False)
+    assert serve._open_browser("http://127.0.0.1:8000/") is False
+    monkeypatch.setattr(webbrowser, "open", lambda url: True)
+    assert serve._open_browser("http://127.0.0.1:8000/") is True
 
 
 def test_bad_port_is_refused(capsys):

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import os
 import subprocess
 import sys
@@ -152,3 +153,58 @@ def test_power_tools_on_the_sheet(tmp_path, capsys):
     correct = run(["correct", str(path), "--source", "V9", "--target", "0.95"], capsys)
     assert sheet[0] == correct[0] == 2 and sheet[2] == correct[2]
     assert "'V9' is not an element" in sheet[2]
+
+
+C16_PLANT = """\
+title Plant bus
+frequency 50 Hz
+G: voltage3 A B C -> 0 400 V line
+M: load3 wye A B C -> 0 0.9 + j0.793725393 ohm
+"""
+
+FEEDER = """\
+title Feeder to a motor bus
+frequency 60 Hz
+V1: voltage a -> 0 120 V
+Rl: resistor a -> b 0.08 ohm
+Ll: inductor b -> c 0.3 mH
+Z1: impedance c -> 0 2.304 + j1.728 ohm
+"""
+
+
+def test_sheet_places_the_correction_at_a_bus(tmp_path, capsys):
+    # check-values C16: 100 kW at PF 0.75 on 400 V 50 Hz (|Z| = 1.2 Ω per phase,
+    # 0.9 + j0.7937 Ω), to 0.95 lagging with a delta bank: C_Δ = 366.874 µF (formula)
+    path = tmp_path / "plant.circuit"
+    path.write_text(C16_PLANT, encoding="utf-8")
+    out = tmp_path / "plant.html"
+    assert run(["sheet", str(path), "-o", str(out), "--correct", "G", "0.95",
+                "--correct-at", "A,B,C", "--bank", "delta"], capsys)[0] == 0
+    assert "366.874 µF" in out.read_text(encoding="utf-8")
+
+
+def test_sheet_correction_at_a_node_is_the_correct_commands(tmp_path, capsys):
+    # common practice, no source: the sheet and the command carry one answer for one
+    # request (the capacitor at bus c, behind a line, is not the one at the source)
+    path = tmp_path / "feeder.circuit"
+    path.write_text(FEEDER, encoding="utf-8")
+    status, out, _ = run(["correct", str(path), "--source", "V1", "--target", "0.95",
+                          "--at", "c", "--json"], capsys)
+    at_bus = json.loads(out)
+    status_src, out_src, _ = run(["correct", str(path), "--source", "V1", "--target", "0.95",
+                                  "--json"], capsys)
+    assert status == status_src == 0
+    assert at_bus["capacitance_f"] != json.loads(out_src)["capacitance_f"]
+    sheet = tmp_path / "feeder.html"
+    assert run(["sheet", str(path), "-o", str(sheet), "--correct", "V1", "0.95",
+                "--correct-at", "c"], capsys)[0] == 0
+    from phasorbench.presentation.formatting import eng
+    assert eng(at_bus["capacitance_f"], "F", 6) in sheet.read_text(encoding="utf-8")
+
+
+def test_placement_flags_without_a_correction_are_refused(tmp_path, capsys):
+    # common practice, no source: a flag that would be ignored is an input error
+    path = tmp_path / "motor.circuit"
+    path.write_text(MOTOR, encoding="utf-8")
+    status, _, err = run(["sheet", str(path), "--correct-at", "a"], capsys)
+    assert status == 2 and "--correct SOURCE PF" in err

@@ -23,7 +23,7 @@ import traceback
 
 from .. import __version__
 from ..blas import pin_before_import
-from ..errors import CircuitError
+from ..errors import CircuitError, Diagnostic, answer
 from .common import (EXIT_INPUT, EXIT_INTERNAL, EXIT_OK, InputFileError, dump_json, load_source,
                      print_diagnostics, read_source)
 
@@ -64,10 +64,13 @@ def main(argv: list[str] | None = None) -> int:
         return args.run(args)
     except InputFileError as exc:
         print(str(exc), file=sys.stderr)
+        _json_errors(args, [Diagnostic(str(exc).split(": error: ", 1)[-1],
+                                       "check the file's path and that it is UTF-8 text")])
         return EXIT_INPUT
     except CircuitError as exc:
         name = getattr(args, "source_name", None) or getattr(args, "file", "<circuit>")
         print_diagnostics(exc.diagnostics, name, getattr(args, "source_text", None))
+        _json_errors(args, exc.diagnostics)
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130
@@ -81,3 +84,11 @@ def main(argv: list[str] | None = None) -> int:
 
 if __name__ == "__main__":
     raise SystemExit(main())
+
+
+def _json_errors(args, diagnostics) -> None:
+    """A command asked for ``--json`` answers bad input on stdout too, in the API's
+    422 shape, so a script reading stdout always gets JSON (the text still goes to
+    stderr, the exit status is still 2)."""
+    if getattr(args, "json", False):
+        sys.stdout.write(dump_json(answer(diagnostics)) + "\n")

@@ -18,6 +18,9 @@ def add_circuit_commands(commands) -> None:
 
     check = commands.add_parser("check", help="validate a circuit without solving it")
     check.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
+    check.add_argument("--json", action="store_true",
+                       help="print the verdict as JSON: errors and warnings (the API's "
+                            "shape), element and node counts")
     check.set_defaults(run=command_check)
 
 
@@ -39,6 +42,13 @@ def command_check(args) -> int:
     text, name = load_source(args)
     circuit = read_circuit(text, name)
     print_diagnostics(circuit.warnings, name, text)
+    if getattr(args, "json", False):
+        from ..errors import answer
+        verdict = {"ok": True, **answer(circuit.warnings),
+                   "elements": len(circuit.elements), "nodes": len(circuit.nodes()),
+                   "frequency_hz": circuit.frequency, "amplitudes": circuit.amplitudes}
+        sys.stdout.write(dump_json(verdict) + "\n")
+        return EXIT_OK
     print(f"{name}: ok: {len(circuit.elements)} elements, {len(circuit.nodes())} nodes, "
           f"{circuit.frequency:g} Hz, amplitudes {circuit.amplitudes}")
     return EXIT_OK

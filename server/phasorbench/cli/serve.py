@@ -63,6 +63,15 @@ def page_url(host: str, port: int) -> str:
     return f"http://{shown}:{port}/"
 
 
+def _open_browser(url: str) -> bool:
+    """Whether a browser was started for ``url`` (False with no display or browser)."""
+    import webbrowser
+    try:
+        return bool(webbrowser.open(url))
+    except webbrowser.Error:
+        return False
+
+
 def serve_main(args) -> int:
     """Run the server until interrupted; returns the exit status."""
     import uvicorn
@@ -91,8 +100,9 @@ def serve_main(args) -> int:
                         allowed_hosts=tuple(getattr(args, "allow_host", []) or ()),
                         scheduler=getattr(args, "scheduler", None))
     if sample and not (settings.samples_dir / f"{sample}.circuit").is_file():
-        print(f"phasorbench serve: no sample named '{sample}' in {settings.samples_dir}",
-              file=sys.stderr)
+        names = sorted(p.stem for p in settings.samples_dir.glob("*.circuit"))
+        print(f"phasorbench serve: no sample named '{sample}' in {settings.samples_dir}; "
+              "the samples are: " + (", ".join(names) or "none"), file=sys.stderr)
         return 2
     if not is_loopback(args.host):
         reach = ("127.0.0.1 or a name given with --allow-host" if args.host in WILDCARD_HOSTS
@@ -117,9 +127,9 @@ def serve_main(args) -> int:
             threading.Event().wait(0.05)
         if server.started:
             print(f"phasorbench: workbench at {url}  (Ctrl+C stops it)", flush=True)
-            if getattr(args, "open", False):
-                import webbrowser
-                webbrowser.open(url)
+            if getattr(args, "open", False) and not _open_browser(url):
+                print(f"phasorbench serve: no browser could be opened on this machine "
+                      f"(no display?); open {url} yourself", file=sys.stderr, flush=True)
 
     announcer = threading.Thread(target=announce, daemon=True)
     announcer.start()

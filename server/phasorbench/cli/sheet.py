@@ -33,9 +33,23 @@ def add_sheet_command(commands) -> None:
                        help="draw this element's waveform and phasors (repeat for more); "
                             "default: each source and reactive element, capped")
     sheet.add_argument("--correct", nargs=2, metavar=("SOURCE", "PF"),
-                       help="add a power-factor correction: the shunt capacitor across "
-                            "SOURCE that brings it to PF lagging (phasorbench correct has "
-                            "the other placements)")
+                       help="add a power-factor correction: the shunt capacitor that "
+                            "brings SOURCE to PF (lagging unless --leading), across the "
+                            "source unless placed with --correct-at or --correct-across")
+    place = sheet.add_mutually_exclusive_group()
+    place.add_argument("--correct-at", metavar="NODE|A,B,C",
+                       help="the correction at a node (capacitor to ground) or at three "
+                            "line nodes (a bank), as phasorbench correct --at")
+    place.add_argument("--correct-across", nargs=2, metavar=("A", "B"),
+                       help="the correction capacitor across two nodes")
+    sheet.add_argument("--bank", choices=("wye", "delta"),
+                       help="connection of a three-phase correction bank (default wye)")
+    sheet.add_argument("--neutral", metavar="NODE",
+                       help="star node of a wye correction bank")
+    sheet.add_argument("--leading", action="store_true",
+                       help="the correction aims at a leading target")
+    sheet.add_argument("--rated-voltage", metavar="V",
+                       help="rated rms voltage of each capacitor unit (IEEE Std 18 duty)")
     sheet.add_argument("--port", nargs=2, metavar=("A", "B"),
                        help="add the Thevenin and Norton equivalents seen from nodes A and B")
     sheet.add_argument("--tolerance", action="append", metavar="P", dest="tol_probes",
@@ -81,8 +95,20 @@ def command_sheet(args) -> int:
     from ..workflow import solve_text
     text, name = load_source(args)
     result = solve_text(text, name)
-    correct = ({"source": args.correct[0], "target": args.correct[1]} if args.correct
-               else None)
+    correct = None
+    placed = (args.correct_at is not None or args.correct_across or args.bank or
+              args.neutral or args.leading or args.rated_voltage is not None)
+    if args.correct:
+        from .tools import correction_at, rated_voltage
+        correct = {"source": args.correct[0], "target": args.correct[1],
+                   "at": correction_at(args.correct_at, args.correct_across),
+                   "bank": args.bank, "neutral": args.neutral, "leading": args.leading,
+                   "rated_voltage": rated_voltage(args.rated_voltage)}
+    elif placed:
+        print("sheet: error: --correct-at, --correct-across, --bank, --neutral, --leading "
+              "and --rated-voltage place or size a correction: give --correct SOURCE PF too",
+              file=sys.stderr)
+        return EXIT_INPUT
     tools = run_power_tools(text, name, correct=correct, port=args.port)
     ask = None
     if args.tol_probes or args.tol_limits:

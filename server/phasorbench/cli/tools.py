@@ -73,6 +73,22 @@ def _input_error(message: str, hint: str = "") -> CircuitError:
     return CircuitError([Diagnostic(message, hint)])
 
 
+def correction_at(at: str | None, across) -> str | tuple | None:
+    """The bank's place from ``--at NODE|A,B,C`` or ``--across A B`` (None: at the
+    source's terminals)."""
+    if across:
+        return tuple(across)
+    if at is not None:
+        parts = [p.strip() for p in at.split(",")]
+        return parts[0] if len(parts) == 1 else tuple(parts)
+    return None
+
+
+def rated_voltage(text: str | None) -> float | None:
+    """``--rated-voltage`` read as volts (``480``, ``0.48kV``)."""
+    return _rated_voltage(text)
+
+
 def _rated_voltage(text: str | None) -> float | None:
     if text is None:
         return None
@@ -89,12 +105,7 @@ def command_correct(args) -> int:
 
     text, name = load_source(args)
     circuit = read_circuit(text, name)
-    at = None
-    if args.across:
-        at = tuple(args.across)
-    elif args.at is not None:
-        parts = [p.strip() for p in args.at.split(",")]
-        at = parts[0] if len(parts) == 1 else tuple(parts)
+    at = correction_at(args.at, args.across)
     result = correct_power_factor(circuit, args.source, args.target, at=at,
                                   leading=args.leading,
                                   rated_voltage=_rated_voltage(args.rated_voltage),

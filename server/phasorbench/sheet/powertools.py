@@ -18,8 +18,9 @@ def run_power_tools(text: str, filename: str = "<circuit>", *, correct: dict | N
     ----------
     correct : dict, optional
         What ``POST /api/correct`` takes: ``source``, ``target`` and optionally ``at``
-        (a node or a list of nodes), ``across`` (two nodes), ``bank``, ``leading``,
-        ``rated_voltage``; without a place, the capacitor goes across the source.
+        (a node or a list of nodes), ``across`` (two nodes), ``bank``, ``neutral``,
+        ``leading``, ``rated_voltage``; without a place, the capacitor goes across the
+        source.
     port : (a, b), optional
         The port's two nodes for the Thevenin and Norton equivalents.
 
@@ -38,7 +39,7 @@ def run_power_tools(text: str, filename: str = "<circuit>", *, correct: dict | N
         out["correction"] = correct_power_factor(
             circuit, correct["source"], correct["target"], at=at,
             leading=bool(correct.get("leading")), rated_voltage=correct.get("rated_voltage"),
-            bank=correct.get("bank"))
+            bank=correct.get("bank"), neutral=correct.get("neutral"))
     if port is not None:
         a, b = port
         out["port"] = port_equivalent(circuit, a, b)

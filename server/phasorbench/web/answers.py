@@ -10,7 +10,7 @@ from __future__ import annotations
 from .. import workflow
 from ..presentation.drawing.phasors import phasor_diagram_svg, three_phase_svg
 from ..presentation.drawing.waveforms import waveform_svg
-from ..errors import CircuitError, Diagnostic
+from ..errors import CircuitError, Diagnostic, answer
 from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
 from ..presentation.display import (correction_display, group_detail, port_display, solve_display,
@@ -26,19 +26,12 @@ PAGE_FILENAME = "<workbench>"
 
 def diagnostic_item(d: Diagnostic) -> dict:
     """The contract's error item, plus the caret width and severity the editor marks."""
-    item = d.as_dict()
-    item["length"] = d.length
-    item["severity"] = d.severity
-    return item
+    return answer([d])["errors" if d.severity != "warning" else "warnings"][0]
 
 
 def diagnostics_answer(diagnostics) -> dict:
-    """``{"errors": [...], "warnings": [...]}``, errors in line order (no line last)."""
-    def order(d: Diagnostic):
-        return (d.line is None, d.line or 0, d.column or 0)
-    ordered = sorted(diagnostics, key=order)
-    return {"errors": [diagnostic_item(d) for d in ordered if d.severity != "warning"],
-            "warnings": [diagnostic_item(d) for d in ordered if d.severity == "warning"]}
+    """``{"errors": [...], "warnings": [...]}`` (``errors.answer``, one home)."""
+    return answer(diagnostics)
 
 
 def check_answer(text: str, settings: Settings) -> dict:
