@@ -9,6 +9,7 @@ import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
 import {createPort} from "./port.js";
 import {exportSheet} from "./sheet-export.js";
+import {setupTableButtons} from "./tables-out.js";
 import {loadSaved, save} from "./store.js";
 import {renderFacts, renderSummary} from "./summary.js";
 import {markSelected, renderBranchTable, renderNodeTable} from "./tables.js";
@@ -236,6 +237,7 @@ function renderResults() {
   }
   state.shown = state.shown.filter((n) => isElement(n) && n !== state.selected);
   const blocks = (display.groups || []).map((g) => g.name);
+  $("blocks-csv").hidden = $("blocks-copy").hidden = blocks.length === 0;
   state.expanded = state.expanded.filter((n) => blocks.includes(n));
   const owner = blockOf(state.selected);
   if (owner && !state.expanded.includes(owner)) state.expanded.push(owner);
@@ -450,7 +452,10 @@ async function exportCurrentSheet() {
       showBanner("The circuit does not solve: fix it before exporting the sheet.", "error");
       return;
     }
-    const names = [state.selected, ...state.shown].filter(Boolean);
+    // The sheet `phasorbench sheet FILE` writes: its default diagrams unless the person
+    // added elements to the views (then those, as `--element` would); the selected
+    // row alone does not narrow the sheet.
+    const names = state.shown.length ? [state.selected, ...state.shown].filter(Boolean) : [];
     const result = await exportSheet(text, names, {
       correct: tools.correction.sheetRequest(text),
       port: tools.port.sheetRequest(text),
@@ -501,6 +506,7 @@ async function init() {
     if (!state.answer.display.rows_partial) showCount(document.querySelectorAll("#branch-table tbody tr[data-element]").length);
   }, FIND_DELAY_MS));
   $("export-sheet").addEventListener("click", exportCurrentSheet);
+  setupTableButtons(document, solvedText, showBanner);
   window.addEventListener("resize", onResize);
   setupCautions(saved.cautionsOpen === true);
   clearViews($("phasor-drawing"), $("waveform-drawing"), $("waveform-facts"),

@@ -34,3 +34,31 @@ def test_export_sheet_downloads_the_solved_sheet(new_page, live_server, tmp_path
         assert re.search(rf">\s*{name}\s*<", html), name
     assert "http:" not in html and "https:" not in html
     assert page.is_enabled("#export-sheet")
+
+
+def test_export_is_the_sheet_the_command_line_writes(new_page, live_server, tmp_path, capsys):
+    # common practice, no source: one request, one sheet — the button's file equals
+    # `phasorbench sheet FILE` for the same text, apart from the moment each was made,
+    # even with a row selected in the branch table
+    from phasorbench.cli import main
+    from tests.sheet.conftest import STAMP
+
+    page = new_page()
+    open_page(page, live_server)
+    page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=TIMEOUT_MS)
+    page.click("#branch-table tbody tr[data-element='R1']")
+    with page.expect_download(timeout=TIMEOUT_MS) as info:
+        page.click("#export-sheet")
+    exported = tmp_path / "page.html"
+    info.value.save_as(exported)
+    source = tmp_path / "bench.circuit"
+    source.write_text(BENCH_CIRCUIT, encoding="utf-8")
+    written = tmp_path / "cli.html"
+    assert main(["sheet", str(source), "-o", str(written)]) == 0
+    capsys.readouterr()
+    page_html = STAMP.sub("", exported.read_text(encoding="utf-8"))
+    cli_html = STAMP.sub("", written.read_text(encoding="utf-8"))
+    # the file name the page gives its circuit differs from the CLI's path
+    page_html = page_html.replace("&lt;workbench&gt;", "FILE").replace("<workbench>", "FILE")
+    cli_html = cli_html.replace(str(source), "FILE")
+    assert page_html == cli_html

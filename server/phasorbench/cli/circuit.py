@@ -13,7 +13,12 @@ def add_circuit_commands(commands) -> None:
     """Register ``solve`` and ``check``."""
     solve = commands.add_parser("solve", help="solve a circuit and print every node and branch")
     solve.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
-    solve.add_argument("--json", action="store_true", help="print the result contract as JSON")
+    out = solve.add_mutually_exclusive_group()
+    out.add_argument("--json", action="store_true", help="print the result contract as JSON")
+    out.add_argument("--table", choices=("nodes", "branches", "three-phase"),
+                     help="print one table as CSV for a spreadsheet (units in the headings)")
+    solve.add_argument("--tsv", action="store_true",
+                       help="with --table: tab-separated instead of comma-separated")
     solve.set_defaults(run=command_solve)
 
     check = commands.add_parser("check", help="validate a circuit without solving it")
@@ -30,6 +35,9 @@ def command_solve(args) -> int:
     result = solve_text(text, name)
     if args.json:
         write_json(result)
+    elif args.table:
+        from ..presentation.tables_out import table_text
+        sys.stdout.write(table_text(result, args.table, "\t" if args.tsv else ","))
     else:
         from .terminal import result_table
         sys.stdout.write(result_table(result))

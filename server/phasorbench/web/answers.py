@@ -10,6 +10,7 @@ from __future__ import annotations
 from .. import workflow
 from ..presentation.drawing.phasors import phasor_diagram_svg, three_phase_svg
 from ..presentation.drawing.waveforms import waveform_svg
+from ..presentation.tables_out import table_text
 from ..errors import CircuitError, Diagnostic, answer
 from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
@@ -86,6 +87,11 @@ def rows_answer(text: str, window: dict, settings: Settings) -> dict:
     result = _solved(text, settings)
     return table_window(result, window["table"], window["start"], window["count"],
                         window.get("sort"), window.get("direction", 1), window.get("find", ""))
+
+
+def table_answer(text: str, table: str, separator: str, settings: Settings) -> str:
+    """One of the tables as CSV or tab-separated text (``tables_out.table_text``)."""
+    return table_text(_solved(text, settings), table, separator)
 
 
 def _picked(result: dict, names: list[str], settings: Settings) -> list[str]:

@@ -15,6 +15,7 @@ import logging
 from typing import Literal
 
 from fastapi import Request
+from fastapi.responses import Response
 from pydantic import BaseModel, Field
 
 from ..errors import CircuitError
@@ -205,6 +206,31 @@ async def port(body: PortBody, request: Request):
     """Thevenin and Norton equivalents seen from nodes ``a`` and ``b``, with the matched
     load and the best resistive load, plus ``display`` text; 422 for unknown nodes."""
     return await run_job(request, answers.port_answer, body.netlist, body.a, body.b)
+
+
+class TableBody(CircuitBody):
+    """A circuit text and one of its tables, as CSV or tab-separated text."""
+
+    table: Literal["nodes", "branches", "three-phase"] = Field(
+        description="which table: nodes, branches or three-phase")
+    format: Literal["csv", "tsv"] = Field("csv", description="csv (a file) or tsv (for "
+                                          "pasting into a spreadsheet)")
+
+
+async def table(body: TableBody, request: Request):
+    """One table of the solved circuit for a spreadsheet: units in the headings, numbers
+    as numbers (never more digits than the solve trusts), a source's current and power
+    the delivered ones; ``text/csv`` as an attachment, or ``text/tab-separated-values``."""
+    def respond(text: str) -> Response:
+        if body.format == "tsv":
+            return Response(text, media_type="text/tab-separated-values; charset=utf-8",
+                            headers={"X-Content-Type-Options": "nosniff",
+                                     "Cache-Control": "no-store"})
+        return Response(text, media_type="text/csv; charset=utf-8", headers={
+            "Content-Disposition": f'attachment; filename="{body.table}.csv"',
+            "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
+    return await run_job(request, answers.table_answer, body.netlist, body.table,
+                         "\t" if body.format == "tsv" else ",", respond=respond)
 
 
 async def samples(request: Request):
