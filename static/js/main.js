@@ -113,7 +113,11 @@ function problemText(data) {
 
 /** Say when the results on screen no longer belong to the text in the editor. */
 function showEdited() {
-  $("edit-state").hidden = !state.answer || editor.getText() === state.solvedText;
+  const edited = Boolean(state.answer) && editor.getText() !== state.solvedText;
+  $("edit-state").hidden = !edited;
+  // the header's title is the solved circuit's: say so while the editor holds another
+  $("fact-title").classList.toggle("stale", edited);
+  $("fact-title").title = edited ? "the title of the circuit as last solved (edited since)" : "";
 }
 
 function showBanner(text, kind) {
@@ -397,7 +401,7 @@ async function fillSamples() {
     const sample = samples.find((s) => s.name === menu.value);
     if (!sample) return;
     loadText(sample.netlist, sample.name);
-    menu.value = "";
+    menu.value = sample.name;   // it keeps naming the sample until the text is edited
     solve();
   });
   return samples;
@@ -485,6 +489,7 @@ async function init() {
   const textarea = $("editor-text");
   const remember = debounce(() => save({netlist: editor.getText()}), 200);
   textarea.addEventListener("input", () => {
+    $("samples").value = "";          // the editor no longer holds the sample as loaded
     remember();
     scheduleCheck();
     showEdited();

@@ -5,6 +5,8 @@ import {el} from "./dom.js";
 export function renderFacts(facts) {
   const set = (id, text) => { document.getElementById(id).textContent = text || ""; };
   set("fact-title", facts ? facts.title : "");
+  // the browser tab names the circuit too, so several open workbenches can be told apart
+  document.title = facts && facts.title ? `${facts.title} — phasorbench` : "phasorbench";
   set("fact-frequency", facts ? `f = ${facts.frequency}` : "not solved yet");
   set("fact-amplitudes", facts ? facts.amplitudes : "");
   set("fact-sign", facts ? facts.sign : "");

@@ -107,11 +107,11 @@ def test_arrow_angles_match_their_phasors(open_sheet):
         x1: l.x1.baseVal.value, y1: l.y1.baseVal.value,
         x2: l.x2.baseVal.value, y2: l.y2.baseVal.value}))""")
     # RC bench with R = Xc (formula, check-values C1): the loop current leads the source
-    # voltage by 45°; V(R1) is in phase with it, V(C1) lags it by 90°; the source's own
-    # current runs through it from + to − (passive sign), opposite the loop current.
+    # voltage by 45°; V(R1) is in phase with it, V(C1) lags it by 90°; the source is
+    # drawn with the current it delivers, which is the loop current.
     expected = {("R1", "voltage"): 45.0, ("R1", "current"): 45.0,
                 ("C1", "voltage"): -45.0, ("C1", "current"): 45.0,
-                ("V1", "voltage"): 0.0, ("V1", "current"): -135.0}
+                ("V1", "voltage"): 0.0, ("V1", "current"): 45.0}
     seen = {}
     for s in shafts:
         # SVG's y axis points down: the drawn angle is atan2(−Δy, Δx).

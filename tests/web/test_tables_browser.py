@@ -40,3 +40,22 @@ def test_branch_csv_downloads_and_copy_fills_the_clipboard(new_page, live_server
     # no three-phase block in this circuit: its buttons stay hidden
     assert page.is_hidden("#blocks-csv")
     page.screenshot(path=str(tmp_path / "tables-out.png"))
+
+
+def test_tab_title_edited_header_and_sample_menu(new_page, live_server):
+    # common practice, no source: a browser tab names its document; a header that no
+    # longer matches the editor says so; a menu shows what was picked
+    from .test_browser import solve, type_circuit
+    page = new_page()
+    open_page(page, live_server)
+    page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=TIMEOUT_MS)
+    assert page.title() == "RC bench — phasorbench"
+    assert "stale" not in (page.get_attribute("#fact-title", "class") or "")
+    page.select_option("#samples", "rc-bench")
+    assert page.input_value("#samples") == "rc-bench"
+    type_circuit(page, "title Other bench\nfrequency 60 Hz\nV1: voltage a -> 0 1\nR1: resistor a -> 0 1\n")
+    page.wait_for_selector("#fact-title.stale", timeout=TIMEOUT_MS)
+    assert page.input_value("#samples") == ""
+    solve(page)
+    page.wait_for_selector("#fact-title:not(.stale):has-text('Other bench')", timeout=TIMEOUT_MS)
+    assert page.title() == "Other bench — phasorbench"

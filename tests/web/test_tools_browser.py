@@ -109,7 +109,7 @@ def test_a_three_phase_block_row_opens_onto_its_phases_and_view(new_page, tools_
     assert page.get_attribute('#branch-table tr[data-group="Motors"]', "aria-expanded") == "false"
     row = page.inner_text('#branch-table tr[data-group="Motors"]')
     # IEEE 1459 totals: Motors is 12 + j9 Ω per phase, so PF = 12/15 = 0.8 lagging (formula).
-    assert "0.8 lagging" in row and "block total" in row and "unbalance" in row
+    assert "0.8 lagging" in row and "block total" in row and "V₂/V₁" in row and "I_N" in row
 
     with page.expect_response(lambda r: r.url.endswith("/api/three-phase")):
         page.click('#branch-table tr[data-group="Motors"]')

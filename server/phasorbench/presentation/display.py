@@ -257,7 +257,9 @@ def group_rows(result: dict) -> list[dict]:
         neutral = None if _no_neutral(name, g) else eng(_mag(g["neutral_current"]), "A",
                                                         floor=i_floor)
         unbalance = _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR)
-        about = f"V₂/V₁ {unbalance}" + (f" · I_N {neutral}" if neutral else " · no neutral")
+        # two short lines (the cell stays as narrow as a phase's terminals)
+        about = (f"V₂/V₁ {unbalance}\n" + (f"I_N {neutral}" if neutral else "no neutral")
+                 ).replace(" ", "\u00a0")       # each line breaks only between the two
         total = "delivered total" if supply else "block total"
         rows.append({
             "name": name, "kind": g.get("kind"), "connection": connection,
