@@ -82,7 +82,15 @@ class Api:
             return await client.request(method, url, **kw)
 
     def request(self, method: str, url: str, **kw) -> httpx.Response:
-        return asyncio.run(self.arequest(method, url, **kw))
+        try:
+            asyncio.get_running_loop()
+        except RuntimeError:
+            return asyncio.run(self.arequest(method, url, **kw))
+        # The browser tests' session-wide Playwright keeps an event loop running in the
+        # main thread once started; a worker thread has none, so any order works.
+        from concurrent.futures import ThreadPoolExecutor
+        with ThreadPoolExecutor(max_workers=1) as pool:
+            return pool.submit(lambda: asyncio.run(self.arequest(method, url, **kw))).result()
 
     def get(self, url: str, **kw) -> httpx.Response:
         return self.request("GET", url, **kw)
