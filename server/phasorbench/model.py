@@ -54,6 +54,11 @@ class Element:
     #: The named value the element's value is, when written as that bare name
     #: (``Ccorr: capacitor c -> 0 Cpf``); the formula study gives both one symbol.
     value_name: str | None = None
+    #: A source's harmonic spectrum (studies.md, "Harmonic spectra"): one
+    #: ``(order, fraction, angle)`` per entry — the component at ``order`` × the source's
+    #: frequency, ``fraction`` of its magnitude, at ``angle + order × (source phase)``
+    #: (radians). Empty for a pure sinusoid.
+    spectrum: tuple[tuple[float, float, float], ...] = ()
 
     @property
     def p(self) -> str:

@@ -16,6 +16,7 @@ import math
 from dataclasses import replace
 
 from .errors import Diagnostic
+from .language.spectrum import component
 from .model import Circuit
 from .results import zero_power_floor
 
@@ -23,26 +24,60 @@ from .results import zero_power_floor
 SAME_FREQUENCY = 1e-12
 
 
+def source_components(circuit: Circuit, e) -> list[tuple[float, complex]]:
+    """``(frequency, phasor)`` of every component of a source: its own value at its
+    frequency, then each ``spectrum`` entry at its order × that frequency."""
+    own = circuit.frequency if e.frequency is None else e.frequency
+    return [(own, e.value)] + [(own * order, component(e.value, order, fraction, angle))
+                               for order, fraction, angle in e.spectrum]
+
+
 def source_frequencies(circuit: Circuit) -> list[float]:
     """Distinct frequencies of the circuit, the analysis frequency first."""
     found = [circuit.frequency]
     for e in circuit.elements.values():
-        f = e.frequency
-        if f is not None and not any(math.isclose(f, g, rel_tol=SAME_FREQUENCY) for g in found):
-            found.append(f)
+        if e.frequency is None and not e.spectrum:
+            continue
+        for f, _ in source_components(circuit, e):
+            if not any(math.isclose(f, g, rel_tol=SAME_FREQUENCY) for g in found):
+                found.append(f)
     return [found[0]] + sorted(found[1:])
 
 
 def circuit_at(circuit: Circuit, frequency: float) -> Circuit:
-    """A copy of ``circuit`` at ``frequency`` with the other frequencies' sources at zero."""
-    elements = {}
-    for name, e in circuit.elements.items():
-        own = circuit.frequency if e.frequency is None else e.frequency
-        if e.kind in ("voltage", "current") and not math.isclose(
-                own, frequency, rel_tol=SAME_FREQUENCY):
-            e = replace(e, value=0j)
-        elements[name] = e
-    return replace(circuit, frequency=frequency, elements=elements)
+    """A copy of ``circuit`` at ``frequency`` with each source at its component there
+    (zero for a source with none: a voltage source shorted, a current source opened)."""
+    elements = dict(circuit.elements)
+    changed = {}
+    for k, (name, e) in enumerate(circuit.elements.items()):
+        if e.kind not in ("voltage", "current"):
+            continue
+        value = sum((v for f, v in source_components(circuit, e)
+                     if math.isclose(f, frequency, rel_tol=SAME_FREQUENCY)), 0j)
+        if value != e.value or e.spectrum:
+            elements[name] = replace(e, value=value, spectrum=())
+            changed[k] = elements[name]
+    at = replace(circuit, frequency=frequency, elements=elements)
+    _share_table(circuit, at, changed)
+    return at
+
+
+def _share_table(circuit: Circuit, at: Circuit, changed: dict) -> None:
+    """Give ``at`` the element table of ``circuit`` with only the sources' values
+    changed: building a table walks every element, which over many frequencies of a
+    big circuit would cost as much as the solves."""
+    import copy
+
+    base = circuit.table()
+    table = copy.copy(base)
+    table.key = (id(at.elements), len(at.elements))
+    if changed:
+        table.elements = list(base.elements)
+        table.values = base.values.copy()
+        for k, e in changed.items():
+            table.elements[k] = e
+            table.values[k] = e.value
+    at._table = table
 
 
 def solve_superposed(circuit: Circuit) -> dict:

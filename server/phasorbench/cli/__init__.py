@@ -7,6 +7,7 @@
 - ``sweep.py``: ``sweep`` (frequency response).
 - ``tolerance.py``: ``tolerance`` (Monte Carlo, sensitivities, worst case, yield).
 - ``formula.py``: ``formula`` (exact formulas in s, sympy in a worker process).
+- ``harmonics.py``: ``harmonics`` (the harmonic study).
 - ``serve.py``: ``serve`` (the web server is imported only when it runs).
 
 Exit status: 0 solved (or valid), 2 the input is wrong (every error printed as
@@ -35,6 +36,7 @@ def build_parser() -> argparse.ArgumentParser:
     """Every sub-command, registered by its own module."""
     from .circuit import add_circuit_commands
     from .formula import add_formula_command
+    from .harmonics import add_harmonics_command
     from .serve import add_serve_command
     from .sheet import add_sheet_command
     from .sweep import add_sweep_command
@@ -48,7 +50,7 @@ def build_parser() -> argparse.ArgumentParser:
     commands = parser.add_subparsers(dest="command", metavar="COMMAND")
     for register in (add_circuit_commands, add_serve_command, add_sheet_command,
                      add_tool_commands, add_sweep_command, add_tolerance_command,
-                     add_formula_command):
+                     add_formula_command, add_harmonics_command):
         register(commands)
     return parser
 

@@ -15,6 +15,7 @@ import re
 
 from ..model import (CONTROLLED_KINDS, GROUND, Coupling, Element, Group)
 from .expressions import LanguageError, TokenStream, decode_suffix, spelling_hint
+from .spectrum import read_spectrum
 from .values import expect_unit, parse_angle_radians, parse_value
 
 #: Canonical unit each kind's value takes (None: a plain number).
@@ -30,6 +31,7 @@ OPTION_KINDS = {
     "rms": ("voltage", "current", "voltage3"),
     "peak": ("voltage", "current", "voltage3"),
     "freq": ("voltage", "current", "voltage3"),
+    "spectrum": ("voltage", "current", "voltage3"),
     "sense": CONTROLLED_KINDS,
     "tol": ("resistor", "inductor", "capacitor", "impedance", "admittance"),
     "line": ("voltage3",),
@@ -208,6 +210,7 @@ class ElementReader:
         if kind in ("voltage", "current"):
             element.value = self.source_phasor(value, options, span)
             element.frequency = options.get("freq")
+            element.spectrum = options.get("spectrum", ())
             if element.frequency is not None:
                 self.source_frequencies[name] = element.frequency
         if kind in CONTROLLED_KINDS:
@@ -307,6 +310,8 @@ class ElementReader:
                 found["sense_span"] = (first.start, stream.tokens[stream.pos - 1].end)
             elif word == "tol":
                 found[key] = self.tolerance(stream, token)
+            elif word == "spectrum":
+                found[key] = read_spectrum(stream, token, self.line.text)
             elif word == "sequence":
                 seq = stream.peek()
                 if seq is None or seq.text.lower() not in ("abc", "acb"):
@@ -426,7 +431,8 @@ class ElementReader:
                 shift = cmath.exp(-1j * math.radians(120.0) * i * step)
                 element = Element(element_name, "voltage", (lines[i], star), base * shift,
                                   self.line.number, group=name,
-                                  frequency=options.get("freq"))
+                                  frequency=options.get("freq"),
+                                  spectrum=options.get("spectrum", ()))
                 if element.frequency is not None:
                     self.source_frequencies[element_name] = element.frequency
                 self.circuit.elements[element_name] = element

@@ -51,6 +51,9 @@ class LanguageError(Exception):
         self.hint = hint
         self.start = start
         self.end = max(end, start + 1)
+        #: Further problems of the same line found in the same pass (a spectrum's
+        #: entries are all checked before the line gives up).
+        self.more: list[LanguageError] = []
 
 
 @dataclass(frozen=True, slots=True)

@@ -81,6 +81,8 @@ class CircuitParser:
 
     def language_error(self, line: _Line, exc: LanguageError) -> None:
         self.error(line.number, exc.message, exc.hint, exc.start, exc.end)
+        for more in exc.more:
+            self.error(line.number, more.message, more.hint, more.start, more.end)
 
     # -- named values -------------------------------------------------------------------
 

@@ -17,7 +17,7 @@ from .expressions import (UNIT_NAMES, UNKNOWN_UNIT, LanguageError, Quantity, Tok
 
 #: Words that end a value: the options that may follow it.
 OPTION_WORDS = frozenset({"phase", "rms", "peak", "freq", "sense", "tol", "line",
-                          "sequence", "uniform", "normal"})
+                          "sequence", "uniform", "normal", "spectrum"})
 
 
 def parse_value(stream: TokenStream, what: str = "value") -> Quantity:
@@ -158,7 +158,7 @@ def _unit_word(stream: TokenStream):
         raise LanguageError(f"unexpected '{token.text}' after the value",
                             spelling_hint(token.text) or
                             "a value may be followed by a unit (ohm, F, H, S, V, A, Hz) and "
-                            "then options (phase, rms, peak, freq, sense, tol)",
+                            "then options (phase, rms, peak, freq, spectrum, sense, tol)",
                             token.start, token.end)
     stream.take()
     return decoded[0], decoded[1], token

@@ -10,7 +10,8 @@ between editions, which is why the text asks the reader to check the edition in 
 
 from __future__ import annotations
 
-__all__ = ["CAUTIONS", "SCOPE_NOTE", "TOLERANCE_NOTE", "cautions_text"]
+__all__ = ["CAUTIONS", "HARMONIC_CAUTIONS", "HARMONIC_SOURCES", "SCOPE_NOTE", "TOLERANCE_NOTE",
+           "cautions_text"]
 
 #: One sentence for the foot of every result: what the numbers are and are not.
 SCOPE_NOTE = (
@@ -79,6 +80,46 @@ CAUTIONS: tuple[tuple[str, str], ...] = (
         "the rules of the supply utility) and the capacitor maker's instructions. Any work "
         "on a real installation is for licensed engineers and electricians.",
     ),
+)
+
+
+#: (title, text) pairs the harmonic study shows beside its results (page, sheet, terminal).
+HARMONIC_CAUTIONS: tuple[tuple[str, str], ...] = (
+    (
+        "A bank near resonance needs a real harmonic study",
+        "Where the network seen from a capacitor resonates near an order that loads "
+        "inject, small harmonic currents become large harmonic voltages and capacitor "
+        "currents: capacitors overheat, fuses blow, and other equipment on the bus sees "
+        "the distortion. The spectra here are assumptions written into the circuit; "
+        "real drives, the supply's own background distortion and other plants' banks "
+        "change the picture. Before a bank is bought, moved or enlarged, have a "
+        "qualified engineer measure and study the real network, and consider a detuned "
+        "(reactor-protected) bank or a filter.",
+    ),
+    (
+        "Capacitor overvoltage and overcurrent",
+        "Harmonics add to a capacitor's rms current and to its peak voltage; the duty "
+        "shown is against the continuous limits of IEEE Std 18-2002 as recalled here "
+        "(110 % rms voltage, 120 % peak voltage, 135 % rms current, 135 % reactive "
+        "power of rating). A unit beyond them ages fast or fails. Check the maker's "
+        "ratings and the standard that applies where you work, and switch the bank off "
+        "when measured distortion is high.",
+    ),
+    (
+        "Harmonic limits are the utility's and the standard's to set",
+        "The voltage limits at the point of common coupling follow IEEE Std 519-2014 "
+        "Table 1 as recalled here; the supply utility's own rules, the contract and the "
+        "standard in force (and its current-distortion limits, not computed here) "
+        "decide what applies. Defer to local codes, the utility and licensed "
+        "engineers.",
+    ),
+)
+
+#: The sources of the harmonic study's limits and definitions, named with its tables.
+HARMONIC_SOURCES = (
+    "Powers: IEEE Std 1459-2010, clause 3.2 (single-phase non-sinusoidal definitions).",
+    "PCC voltage limits: IEEE Std 519-2014, Table 1 (values as recalled, from memory).",
+    "Capacitor duty: IEEE Std 18-2002 continuous limits (values as recalled, from memory).",
 )
 
 

@@ -119,3 +119,9 @@ def _bandwidth(engine, probe, f, mag, k, level, kind, f0):
     f_lo = _crossing(engine, probe, f0, f[lo], level)
     f_hi = _crossing(engine, probe, f0, f[hi], level)
     return f_hi - f_lo
+
+
+def peak_frequency(circuit, probe, lo: float, hi: float) -> float:
+    """The frequency of the peak of |probe| between ``lo`` and ``hi`` (Hz), refined on the
+    exact solve like every resonance here (the harmonic study's capacitor scan)."""
+    return _refine(circuit, probe, lo, hi, 1.0)

@@ -70,6 +70,8 @@ def _routes(settings: Settings) -> list:
                  response_class=StrictJSONResponse),
         post("/api/formula", study_routes.formula,
              "A probe as an exact formula in s, with poles, zeros and balance conditions"),
+        post("/api/harmonics", study_routes.harmonics,
+             "Harmonic study: distortion, IEEE 1459 powers, IEEE 519 limits, capacitor duty"),
         *sheet_routes.router.routes,          # POST /api/sheet: the solved sheet download
         APIRoute("/api/samples", api.samples, methods=["GET"], summary="List the sample circuits",
                  response_class=StrictJSONResponse),

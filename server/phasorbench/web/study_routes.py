@@ -1,6 +1,7 @@
 """The studies' routes (thin handlers and their request models): ``POST /api/sweep``
 (the sweep JSON; with ``draw``, also the response picture and the page's strings) and
-``POST /api/sweep/csv`` (the same sweep as a CSV download), ``POST /api/formula`` (an exact formula).
+``POST /api/sweep/csv`` (the same sweep as a CSV download), ``POST /api/formula`` (an exact formula);
+``POST /api/harmonics`` (the harmonic study).
 
 Bad probes and ranges answer 422 in the language's error shape (``api.run_job``); the
 work of one sweep is bounded by points × unknowns (``MAX_SWEEP_WORK``), said in the error.
@@ -22,6 +23,8 @@ from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX, Settings
 
 #: Largest points × unknowns of one sweep request.
 MAX_SWEEP_WORK = 1_000_000
+#: Largest orders × unknowns of one harmonic study (each order is one full solve).
+MAX_HARMONIC_WORK = 2_000_000
 
 
 class DrawAsk(BaseModel):
@@ -56,13 +59,57 @@ class SweepBody(api.CircuitBody):
                 "arrays": self.arrays}
 
 
+def _unknowns(circuit) -> int:
+    return len(circuit.nodes()) - 1 + sum(
+        e.kind in VOLTAGE_KINDS or e.kind == "transformer"
+        for e in circuit.elements.values())
+
+
+class HarmonicsBody(api.CircuitBody):
+    """A circuit text and, optionally, the PCC, capacitor ratings and the spectra to draw."""
+
+    pcc: str | None = Field(None, description="the node where the utility meets the plant")
+    nominal: float | None = Field(None, description="the PCC's nominal (line-to-line) "
+                                                    "voltage, V: picks the IEEE 519 row")
+    rated: dict[str, float] | None = Field(
+        None, description="rated rms voltage of capacitors, by element name, V")
+    node: str | None = Field(None, description="the node whose voltage spectrum is drawn")
+    element: str | None = Field(None, description="the element whose current spectrum is "
+                                                  "drawn")
+
+
+def harmonics_answer(text: str, ask: dict, settings: Settings) -> dict:
+    """The harmonic study's JSON (studies.md) plus its ``display`` strings and charts."""
+    from ..presentation.studies.harmonics import harmonics_display
+    from ..studies.harmonics import run_harmonics
+    from ..superposition import source_frequencies
+    circuit = _read(text, settings)
+    orders, unknowns = len(source_frequencies(circuit)), _unknowns(circuit)
+    if orders * max(1, unknowns) > MAX_HARMONIC_WORK:
+        raise CircuitError([Diagnostic(
+            f"this study is {orders:,} orders × {unknowns:,} unknowns, above the server's "
+            f"limit of {MAX_HARMONIC_WORK:,} orders × unknowns",
+            "give fewer spectrum orders, or run 'phasorbench harmonics' on the command "
+            "line")])
+    result = run_harmonics(circuit, ask.get("pcc"), ask.get("nominal"), ask.get("rated"))
+    result["display"] = harmonics_display(result, ask.get("node"), ask.get("element"))
+    return result
+
+
+async def harmonics(body: HarmonicsBody, request: Request):
+    """The harmonic study: ``nodes`` (rms, THD, each order), ``elements`` (IEEE 1459
+    quantities), ``pcc`` (IEEE 519 limits), ``capacitors`` (IEEE 18 duty, resonance
+    order), ``warnings`` and ``display``; 422 for bad input."""
+    ask = {"pcc": body.pcc, "nominal": body.nominal, "rated": body.rated,
+           "node": body.node, "element": body.element}
+    return await api.run_job(request, harmonics_answer, body.netlist, ask)
+
+
 def sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
     """The sweep JSON of studies.md, after the work bound."""
     from ..studies.sweep import DEFAULT_POINTS, run_sweep
     circuit = _read(text, settings)
-    unknowns = len(circuit.nodes()) - 1 + sum(
-        e.kind in VOLTAGE_KINDS or e.kind == "transformer"
-        for e in circuit.elements.values())
+    unknowns = _unknowns(circuit)
     points = ask.get("points") or DEFAULT_POINTS
     if isinstance(points, int) and points * max(1, unknowns) > MAX_SWEEP_WORK:
         raise CircuitError([Diagnostic(

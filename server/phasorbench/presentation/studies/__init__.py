@@ -1,1 +1,1 @@
-"""Strings and rows of the studies, shown by the page and the sheet alike."""
+"""Strings and rows of the studies (one module per study), for the page, the sheet and the terminal."""
