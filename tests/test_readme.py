@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pytest
 
-from phasorbench.presentation.cautions import CAUTIONS
+from phasorbench.presentation.cautions import CAUTIONS, HARMONIC_CAUTIONS
 from phasorbench.cli import build_parser
 from phasorbench.web.settings import SETTINGS_HELP
 
@@ -23,7 +23,7 @@ def test_every_server_setting_is_documented(setting):
     assert f"`{setting}`" in README
 
 
-@pytest.mark.parametrize("title", [title for title, _ in CAUTIONS])
+@pytest.mark.parametrize("title", [title for title, _ in CAUTIONS + HARMONIC_CAUTIONS])
 def test_every_caution_is_in_the_readme(title):
     assert title in README
 

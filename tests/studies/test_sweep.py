@@ -193,3 +193,15 @@ R2: resistor b -> 0 1
     assert r["probes"]["V(a)/V(b)"]["mag"] == [None] * 5
     assert any("Vh" in w for w in r["warnings"]) and any("denominator" in w
                                                           for w in r["warnings"])
+
+
+def test_spectrum_components_are_left_out_of_a_sweep():
+    # studies.md ("Harmonic spectra"): during a sweep the spectrum is left out, and the
+    # sweep says so; the response is that of the fundamental alone (V = I·R = 5 V)
+    from phasorbench.studies.sweep import run_sweep
+    from phasorbench.workflow import read_circuit
+    c = read_circuit("frequency 50 Hz\nI1: current 0 -> a 1 A spectrum 5: 50 %\n"
+                     "R1: resistor a -> 0 5 ohm\n")
+    r = run_sweep(c, ["V(a)"], 10, 1000, 3)
+    assert r["probes"]["V(a)"]["mag"] == pytest.approx([5.0, 5.0, 5.0], rel=1e-12)
+    assert any("spectrum components of I1 are left out" in w for w in r["warnings"])

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+import pytest
+
 from .test_tools_api import api  # noqa: F401  (the threaded client fixture)
 
 RLC = """frequency 50 Hz
@@ -115,3 +117,43 @@ def test_formula_time_limit_is_a_422_that_says_so(api):  # noqa: F811
     # common practice, no source: a bounded server says which limit it hit
     assert r.status_code == 422
     assert r.json()["errors"][0]["message"].startswith(("time limit", "size limit"))
+HARMONIC = """frequency 50 Hz
+Vs: voltage s -> 0 230 V
+Rs: resistor s -> m 0.1 ohm
+Ls: inductor m -> p 1 mH
+Cb: capacitor p -> 0 400 uF
+Drive: current p -> 0 100 A spectrum 5: 30 %, 7: 10 %
+"""
+
+
+def test_harmonics_answers_the_study_and_its_display(api):  # noqa: F811
+    r = api.post("/api/harmonics", json={"netlist": HARMONIC, "pcc": "p", "nominal": 400,
+                                         "rated": {"Cb": 240}, "element": "Cb"})
+    assert r.status_code == 200
+    body = r.json()
+    assert body["orders"] == [1, 5, 7]
+    # IEEE 1459-2010 3.2.4.2: SN² = S² − S1² for every element
+    for e in body["elements"].values():
+        w = e["ieee1459"]
+        assert w["sn_va"] ** 2 == pytest.approx(w["s_va"] ** 2 - w["s1_va"] ** 2,
+                                                rel=1e-9, abs=1e-9 * w["s_va"] ** 2)
+    d = body["display"]
+    assert d["element"] == "Cb" and d["node"] == "p"
+    assert [s["key"] for s in d["spectra"]] == ["node", "element"]
+    assert all(s["svg"].startswith("<svg") for s in d["spectra"])
+    assert {t["key"] for t in d["tables"]} >= {"distortion", "pcc", "capacitors", "ieee1459"}
+
+
+def test_harmonics_bad_input_is_422_with_every_error(api):  # noqa: F811
+    r = api.post("/api/harmonics", json={"netlist": HARMONIC, "pcc": "q", "rated": {"Rs": 5}})
+    assert r.status_code == 422                       # studies.md: HTTP 422, all in one pass
+    messages = [e["message"] for e in r.json()["errors"]]
+    assert len(messages) == 3
+    bad = HARMONIC.replace("5: 30 %", "1: 30 %")
+    r = api.post("/api/harmonics", json={"netlist": bad})
+    assert r.status_code == 422
+    (error,) = r.json()["errors"]
+    column = bad.splitlines()[5].index("1: 30") + 1
+    assert error["line"] == 6 and error["column"] == column and "not above 1" in error["message"]
+    r = api.post("/api/harmonics", json={"netlist": HARMONIC, "rated": {"Cb": "high"}})
+    assert r.status_code == 422                       # the framework's refusal, same shape

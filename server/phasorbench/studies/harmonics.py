@@ -21,6 +21,7 @@ elements × orders:
 from __future__ import annotations
 
 import difflib
+import gc
 import math
 
 import numpy as np
@@ -45,6 +46,9 @@ IEEE519_HIGHEST_ORDER = 50
 SCAN_ORDERS = 25.0
 SCAN_POINTS_SMALL = 240      # systems solved as stacked dense matrices
 SCAN_POINTS_LARGE = 80       # systems solved sparse, one factorisation per point
+#: At most this many capacitors (the largest) get a resonance scan: each is one more
+#: right-hand side per point and a refinement per peak.
+MAX_SCANNED = 12
 
 
 def ieee519_limits(nominal_v: float) -> dict:
@@ -129,16 +133,26 @@ def _check_request(circuit: Circuit, pcc, nominal, rated) -> None:
         raise CircuitError(problems)
 
 
-def _phasors(values: np.ndarray) -> list[dict]:
+def _phasor_rows(values: np.ndarray) -> list[list[dict]]:
+    """Contract phasor dicts of a 2-D array, row by row (built from plain lists: this is
+    the bulk of the study's time on a big circuit)."""
     re, im = values.real.tolist(), values.imag.tolist()
     mag, deg = np.abs(values).tolist(), np.degrees(np.angle(values)).tolist()
-    return [{"re": a, "im": b, "mag": c, "deg": d} for a, b, c, d in zip(re, im, mag, deg)]
+    return [[{"re": a, "im": b, "mag": c, "deg": d} for a, b, c, d in zip(*row)]
+            for row in zip(re, im, mag, deg)]
 
 
 def _ratio_pct(part: np.ndarray, whole: np.ndarray) -> list:
+    """``100·part/whole`` as (nested) lists, None where ``whole`` is 0; ``whole`` is
+    one value per row of ``part``."""
+    whole = whole.reshape(whole.shape + (1,) * (part.ndim - whole.ndim))
     out = np.full(part.shape, np.nan)
-    np.divide(100.0 * part, whole, out=out, where=whole > 0)
-    return [None if not math.isfinite(v) else v for v in out.tolist()]
+    np.divide(100.0 * part, whole, out=out, where=np.broadcast_to(whole > 0, part.shape))
+    if np.isfinite(out).all():
+        return out.tolist()
+    if out.ndim == 1:
+        return [None if not math.isfinite(v) else v for v in out.tolist()]
+    return [[None if not math.isfinite(v) else v for v in row] for row in out.tolist()]
 
 
 def ieee1459(v: np.ndarray, i: np.ndarray, k1: int, to_rms: float) -> dict:
@@ -175,8 +189,20 @@ def run_harmonics(circuit: Circuit, pcc: str | None = None, nominal: float | Non
                   rated: dict[str, float] | None = None, scan: bool = True) -> dict:
     """The harmonic study's JSON (studies.md): nodes, elements, pcc, capacitors, warnings."""
     _check_request(circuit, pcc, nominal, rated)
-    f1 = circuit.frequency
     frequencies, solutions = solve_orders(circuit)
+    # Hundreds of thousands of small dicts and no cycles among them: the cyclic
+    # collector would walk the growing heap again and again while they are built.
+    collecting = gc.isenabled()
+    gc.disable()
+    try:
+        return _study(circuit, frequencies, solutions, pcc, nominal, rated, scan)
+    finally:
+        if collecting:
+            gc.enable()
+
+
+def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan) -> dict:
+    f1 = circuit.frequency
     orders = [f / f1 for f in frequencies]
     k1 = next(k for k, f in enumerate(frequencies)
               if math.isclose(f, f1, rel_tol=SAME_FREQUENCY))
@@ -195,39 +221,35 @@ def run_harmonics(circuit: Circuit, pcc: str | None = None, nominal: float | Non
     v = np.stack([s.voltage for s in solutions], axis=1)
     i = np.stack([s.current for s in solutions], axis=1)
     q = ieee1459(v, i, k1, to_rms)
-    v_pct = np.array([_ratio_pct(np.abs(v[:, k]) * to_rms, q["v1"]) for k in
-                      range(len(keys))], dtype=object).T
-    i_pct = np.array([_ratio_pct(np.abs(i[:, k]) * to_rms, q["i1"]) for k in
-                      range(len(keys))], dtype=object).T
+    v_pct = _ratio_pct(np.abs(v) * to_rms, q["v1"])
+    i_pct = _ratio_pct(np.abs(i) * to_rms, q["i1"])
     thd_v, thd_i = _ratio_pct(q["vh"], q["v1"]), _ratio_pct(q["ih"], q["i1"])
     columns = {key: q[key].tolist() for key in _IEEE1459_KEYS + ("v_rms", "i_rms")}
-    p_h = q["p_h"].tolist()
-    v_ph = [_phasors(v[:, k]) for k in range(len(keys))]
-    i_ph = [_phasors(i[:, k]) for k in range(len(keys))]
+    kinds = [circuit.elements[name].kind for name in names]
     elements = {}
-    for e, name in enumerate(names):
+    for e, (name, v_row, i_row, pv, pi, ph) in enumerate(zip(
+            names, _phasor_rows(v), _phasor_rows(i), v_pct, i_pct, q["p_h"].tolist())):
         elements[name] = {
-            "kind": circuit.elements[name].kind,
+            "kind": kinds[e],
             "rms_v": columns["v_rms"][e], "rms_i": columns["i_rms"][e],
             "thd_v_pct": thd_v[e], "thd_i_pct": thd_i[e], "p_w": columns["p_w"][e],
             "ieee1459": {key: columns[key][e] for key in _IEEE1459_KEYS},
-            "orders": {key: {"v": v_ph[k][e], "i": i_ph[k][e], "pct_v": v_pct[e, k],
-                             "pct_i": i_pct[e, k], "p_w": p_h[e][k]}
-                       for k, key in enumerate(keys)}}
+            "orders": {key: {"v": a, "i": b, "pct_v": c, "pct_i": d, "p_w": w}
+                       for key, a, b, c, d, w in zip(keys, v_row, i_row, pv, pi, ph)}}
 
-    node_names = [n for n in solutions[0].node_voltages if n != "0"]
-    nv = np.array([[s.node_voltages[n] for s in solutions] for n in node_names],
-                  dtype=complex).reshape(len(node_names), len(keys))
+    all_nodes = list(solutions[0].node_voltages)
+    keep = [k for k, n in enumerate(all_nodes) if n != "0"]
+    node_names = [all_nodes[k] for k in keep]
+    nv = np.array([list(s.node_voltages.values()) for s in solutions],
+                  dtype=complex).reshape(len(keys), len(all_nodes)).T[keep]
     nr = np.abs(nv) * to_rms
     n1 = nr[:, k1]
     nh = np.sqrt(np.sum(np.delete(nr, k1, axis=1) ** 2, axis=1))
     n_rms, n_thd = np.hypot(n1, nh).tolist(), _ratio_pct(nh, n1)
-    n_pct = [_ratio_pct(nr[:, k], n1) for k in range(len(keys))]
-    n_ph = [_phasors(nv[:, k]) for k in range(len(keys))]
-    nodes = {name: {"rms_v": n_rms[j], "thd_pct": n_thd[j],
-                    "orders": {key: {"v": n_ph[k][j], "pct": n_pct[k][j]}
-                               for k, key in enumerate(keys)}}
-             for j, name in enumerate(node_names)}
+    nodes = {name: {"rms_v": rms, "thd_pct": thd,
+                    "orders": {key: {"v": a, "pct": b} for key, a, b in zip(keys, row, pct)}}
+             for name, rms, thd, row, pct in zip(node_names, n_rms, n_thd,
+                                                 _phasor_rows(nv), _ratio_pct(nr, n1))}
 
     result = {"fundamental_hz": f1, "amplitudes": circuit.amplitudes,
               "orders": [int(round(h)) if _is_harmonic(h) else h for h in orders],
@@ -275,7 +297,11 @@ def _capacitors(circuit, elements, rated, keys, orders, k1, scan, warnings) -> d
     names = [n for n, e in circuit.elements.items() if e.kind == "capacitor"]
     if not names:
         return {}
-    peaks = _resonance_orders(circuit, names, orders) if scan else {}
+    scanned = sorted(names, key=lambda n: -circuit.elements[n].value.real)[:MAX_SCANNED]
+    if scan and len(names) > len(scanned):
+        warnings.append(f"the resonance order is scanned for the {MAX_SCANNED} largest of "
+                        f"the {len(names):,} capacitors only")
+    peaks = _resonance_orders(circuit, scanned, orders) if scan else {}
     present = [h for h in orders if h > 1]
     out = {}
     for name in names:

@@ -92,6 +92,10 @@ def run_sweep(circuit, probe_texts, start=None, stop=None, points=None,
     if own:
         warnings.append(f"{', '.join(own)} run at their own frequency and are zeroed "
                         "during the sweep")
+    spectra = [name for name, e in circuit.elements.items() if e.spectrum]
+    if spectra:
+        warnings.append(f"the spectrum components of {', '.join(spectra[:6])} are left out "
+                        "during the sweep (the sweep drives the fundamental)")
     frequencies = grid(start, stop, points, spacing)
     response = SweepEngine(swept, probes).response(frequencies)
     if response.singular:

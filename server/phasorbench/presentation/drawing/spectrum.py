@@ -73,7 +73,8 @@ def spectrum_svg(bars: list[dict], heading: str, unit_note: str, limit_pct: floa
                       + (" — above the limit" if over else ""))
         body.append(tag("rect", hover, x=x_mid - bar_w / 2, y=y, width=bar_w,
                         height=max(0.5, base_y - y), fill="#ffffff" if over else _BAR,
-                        stroke=_OVER if over else _BAR, stroke_width="1.5"))
+                        stroke=_OVER if over else _BAR, stroke_width="1.5",
+                        class_="pb-bar pb-over" if over else "pb-bar", data_order=b["label"]))
         if over:
             body.append(_hatch(x_mid - bar_w / 2, y, bar_w, base_y - y))
         if over:
@@ -85,7 +86,7 @@ def spectrum_svg(bars: list[dict], heading: str, unit_note: str, limit_pct: floa
     if limit_pct:
         y = y_of(limit_pct)
         body.append(tag("line", x1=_LEFT, x2=_LEFT + plot_w, y1=y, y2=y, stroke=INK,
-                        stroke_width="1.5", stroke_dasharray="6 4"))
+                        stroke_width="1.5", stroke_dasharray="6 4", class_="pb-limit"))
         body.append(text(_LEFT + plot_w, y - 5, f"limit {fmt.plain(limit_pct, 3)} %",
                          font_size=11, text_anchor="end"))
     body.append(text(_LEFT + plot_w / 2, height - 8, "harmonic order (percent of the "

@@ -153,7 +153,7 @@ def _capacitor_table(result: dict) -> dict | None:
                 cells.append(MISSING)
                 continue
             over = key in c["exceeded"]
-            cells.append(f"{_pct(duty[key])} {'✖ over' if over else '✓'} "
+            cells.append(f"{_pct(duty[key], 4)} {'✖ over' if over else '✓'} "
                          f"{_pct(c['limits_pct'][key], 3)}")
         cells.append(verdict(c["pass"]) if c["rated_v"] else "give a rated voltage")
         h = c["resonance_order"]
