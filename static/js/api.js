@@ -43,6 +43,8 @@ export const postCorrect = (netlist, ask, signal) => postJSON("/api/correct", {n
 /** `ask`: {probe, keep, solve_for} (see /docs). */
 export const postFormula = (netlist, ask, signal) => postJSON("/api/formula", {netlist, ...ask}, signal);
 export const postPort = (netlist, a, b, signal) => postJSON("/api/port", {netlist, a, b}, signal);
+/** `ask`: {pcc, nominal, rated: {capacitor: volts}, node, element} (see /docs). */
+export const postHarmonics = (netlist, ask, signal) => postJSON("/api/harmonics", {netlist, ...ask}, signal);
 
 /** The tolerance study as a job: start it, poll it, cancel it (see /docs). */
 export const startToleranceJob = (netlist, ask) =>

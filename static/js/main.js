@@ -7,6 +7,7 @@ import {getSamples, postCheck, postPhasors, postRows, postSolve, postWaveforms} 
 import {createCorrection} from "./correction.js";
 import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
+import {createHarmonics} from "./harmonics.js";
 import {createPort} from "./port.js";
 import {exportSheet} from "./sheet-export.js";
 import {setupTableButtons} from "./tables-out.js";
@@ -261,6 +262,7 @@ function updateTools(choices) {
   tools.correction.update(choices);
   tools.port.update(choices);
   tools.sweep.update(choices);
+  tools.harmonics.update(choices, state.answer.display.elements);
   tools.threePhase.update(choices.groups, state.solvedText);
   const threePhase = choices.groups.length > 0;
   tools.tabs.offer("three-phase", threePhase);
@@ -435,6 +437,7 @@ function setupTools() {
     tolerance: createTolerance({getSolved: solvedText}),
     sweep: createSweep({getSolved: solvedText}),
     formula: createFormula({getSolved: solvedText}),
+    harmonics: createHarmonics({getSolved: solvedText}),
     tabs: createTabs($("tool-tabs"), {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),
@@ -466,6 +469,7 @@ async function exportCurrentSheet() {
       tolerance: tools.tolerance.sheetRequest(text),
       sweep: tools.sweep.sheetRequest(text),
       formula: tools.formula.sheetRequest(text),
+      harmonics: tools.harmonics.sheetRequest(text),
     });
     if (!result.ok) {
       const data = result.data || {};

@@ -383,3 +383,25 @@ def _resonance_orders(circuit, names, orders) -> dict[str, list[float]]:
             found.append(f0 / f1)
         out[name] = found
     return out
+
+
+def element_waveforms(result: dict, name: str, periods: float = 2,
+                      samples_per_period: int = 200) -> tuple[dict, dict]:
+    """``(summed, fundamental)``: ``waveforms.sample_element`` of one element of a study,
+    over every order and over the fundamental alone (the page's and the sheet's pair of
+    pictures)."""
+    from ..waveforms import sample_element
+    e = result["elements"][name]
+    keys = list(e["orders"])
+    fundamental = next(k for k in keys if k == "1")
+
+    def part(key):
+        o = e["orders"][key]
+        return {"kind": e["kind"], "voltage": o["v"], "current": o["i"], "p_w": o["p_w"]}
+    one = {"frequency_hz": result["fundamental_hz"], "amplitudes": result["amplitudes"],
+           "elements": {name: part(fundamental)}}
+    every = dict(one, harmonics=[
+        {"frequency_hz": result["fundamental_hz"] * float(k), "elements": {name: part(k)}}
+        for k in keys if k != fundamental])
+    return (sample_element(every, name, periods, samples_per_period),
+            sample_element(one, name, periods, samples_per_period))

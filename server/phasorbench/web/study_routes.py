@@ -80,8 +80,8 @@ class HarmonicsBody(api.CircuitBody):
 
 def harmonics_answer(text: str, ask: dict, settings: Settings) -> dict:
     """The harmonic study's JSON (studies.md) plus its ``display`` strings and charts."""
-    from ..presentation.studies.harmonics import harmonics_display
-    from ..studies.harmonics import run_harmonics
+    from ..presentation.studies.harmonics import chosen, harmonics_display
+    from ..studies.harmonics import element_waveforms, run_harmonics
     from ..superposition import source_frequencies
     circuit = _read(text, settings)
     orders, unknowns = len(source_frequencies(circuit)), _unknowns(circuit)
@@ -92,7 +92,9 @@ def harmonics_answer(text: str, ask: dict, settings: Settings) -> dict:
             "give fewer spectrum orders, or run 'phasorbench harmonics' on the command "
             "line")])
     result = run_harmonics(circuit, ask.get("pcc"), ask.get("nominal"), ask.get("rated"))
-    result["display"] = harmonics_display(result, ask.get("node"), ask.get("element"))
+    node, element = chosen(result, ask.get("node"), ask.get("element"))
+    samples = element_waveforms(result, element) if element is not None else None
+    result["display"] = harmonics_display(result, node, element, samples)
     return result
 
 

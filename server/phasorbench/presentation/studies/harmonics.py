@@ -9,9 +9,10 @@ from __future__ import annotations
 
 from ..cautions import HARMONIC_CAUTIONS, HARMONIC_SOURCES, SCOPE_NOTE
 from ..drawing.spectrum import spectrum_svg
+from ..drawing.waveforms import waveform_svg
 from ..formatting import MISSING, ROUND_OFF, eng, plain
 
-__all__ = ["MAX_ROWS", "MAX_ORDER_COLUMNS", "harmonics_display", "verdict"]
+__all__ = ["MAX_ROWS", "MAX_ORDER_COLUMNS", "chosen", "harmonics_display", "verdict"]
 
 #: Rows of the node and element tables shown (the JSON holds them all).
 MAX_ROWS = 40
@@ -195,21 +196,31 @@ def _default_element(result: dict) -> str | None:
     return max(elements, key=lambda n: elements[n]["thd_i_pct"] or 0.0) if elements else None
 
 
+def chosen(result: dict, node: str | None = None, element: str | None = None):
+    """The node and element whose spectra are drawn: the ones asked for when they exist,
+    else the PCC or the most distorted node, the first capacitor or the most distorted
+    current."""
+    node = node if node in result["nodes"] else _default_node(result)
+    element = element if element in result["elements"] else _default_element(result)
+    return node, element
+
+
 def harmonics_display(result: dict, node: str | None = None,
-                      element: str | None = None) -> dict:
+                      element: str | None = None, waveforms=None) -> dict:
     """The strings, tables and charts of one harmonic study.
 
     ``{"heading", "facts", "node", "element", "choices": {"nodes", "elements"},
     "spectra": [{"key", "caption", "svg"}], "tables": [{"key", "caption", "headings",
     "rows", "flags", "note"}], "warnings", "cautions": [{"title", "text"}], "sources",
-    "scope_note"}``; ``node`` and ``element`` pick the two spectra (defaults: the PCC or
-    the most distorted node; the first capacitor or the most distorted current).
+    "scope_note", "waveforms": [{"key", "caption", "svg"}]}``; ``node`` and ``element``
+    pick the two spectra (see ``chosen``); ``waveforms`` is the chosen element's
+    ``(summed, fundamental)`` samples (``studies.harmonics.element_waveforms``), drawn
+    side by side.
     """
     keys = [str(o) if isinstance(o, int) else f"{o:.6g}" for o in result["orders"]]
     k1 = "1"
     to_rms = 2 ** -0.5 if result.get("amplitudes") == "peak" else 1.0
-    node = node if node in result["nodes"] else _default_node(result)
-    element = element if element in result["elements"] else _default_element(result)
+    node, element = chosen(result, node, element)
     pcc = result.get("pcc")
     facts = [{"key": "fundamental", "term": "fundamental", "value": eng(
         result["fundamental_hz"], "Hz"), "flag": None},
@@ -256,4 +267,15 @@ def harmonics_display(result: dict, node: str | None = None,
             "choices": {"nodes": list(result["nodes"]), "elements": list(result["elements"])},
             "spectra": spectra, "tables": tables, "warnings": list(result["warnings"]),
             "cautions": [{"title": t, "text": x} for t, x in HARMONIC_CAUTIONS],
-            "sources": list(HARMONIC_SOURCES), "scope_note": SCOPE_NOTE}
+            "sources": list(HARMONIC_SOURCES), "scope_note": SCOPE_NOTE,
+            "waveforms": _waveforms(element, waveforms)}
+
+
+def _waveforms(element, samples) -> list[dict]:
+    if not samples or element is None:
+        return []
+    summed, fundamental = samples
+    return [{"key": "summed", "caption": f"{element}: every order added",
+             "svg": waveform_svg(summed, width=520, height=300)},
+            {"key": "fundamental", "caption": f"{element}: the fundamental alone",
+             "svg": waveform_svg(fundamental, width=520, height=300)}]
