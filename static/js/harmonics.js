@@ -40,8 +40,9 @@ export function createHarmonics({getSolved}) {
     const pcc = $("hs-pcc").value;
     const cap = $("hs-cap").value;
     const body = {node: $("hs-node").value || null, element: $("hs-element").value || null};
-    if (pcc) { body.pcc = pcc; body.nominal = nominal > 0 ? nominal : null; }
-    if (cap && rated > 0) body.rated = {[cap]: rated};
+    // Numbers as typed (a bad one gets the server's message); empty fields are left out.
+    if (pcc) { body.pcc = pcc; body.nominal = $("hs-nominal").value === "" ? null : nominal; }
+    if (cap && $("hs-rated").value !== "") body.rated = {[cap]: rated};
     return body;
   }
 

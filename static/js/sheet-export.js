@@ -55,6 +55,7 @@ export async function exportSheet(netlist, elements, tools = {}) {
   if (tools.tolerance) body.tolerance = tools.tolerance;
   if (tools.sweep) body.sweep = tools.sweep;
   if (tools.formula) body.formula = tools.formula;
+  if (tools.harmonics) body.harmonics = tools.harmonics;
   let response;
   try {
     response = await fetch("/api/sheet", {

@@ -8,12 +8,14 @@ written), 1 an internal failure. ``cli.py`` finds this module and registers it.
 
 from __future__ import annotations
 
+import argparse
 import os
 import sys
 import tempfile
 
-from ..errors import CircuitError
+from ..errors import CircuitError, Diagnostic
 from .common import EXIT_INPUT, EXIT_OK, load_source, print_warnings
+from .harmonics import voltage_argument
 
 
 __all__ = ["add_sheet_command", "command_sheet"]
@@ -67,6 +69,13 @@ def add_sheet_command(commands) -> None:
     sheet.add_argument("--seed", type=int, metavar="S", help="seed of the tolerance study")
     sheet.add_argument("--worst-case", action="store_true",
                        help="add the worst case to the tolerance study")
+    sheet.add_argument("--harmonics", action="store_true",
+                       help="add the harmonic study (phasorbench harmonics)")
+    sheet.add_argument("--pcc", metavar="NODE", help="the harmonic study's PCC")
+    sheet.add_argument("--nominal", type=voltage_argument, metavar="VOLTS",
+                       help="the PCC's nominal voltage (the IEEE 519 row)")
+    sheet.add_argument("--rated", nargs=2, action="append", metavar=("ELEMENT", "VOLTS"),
+                       help="a capacitor's rated rms voltage, for its IEEE 18 duty")
     sheet.set_defaults(run=command_sheet)
 
 
@@ -128,10 +137,20 @@ def command_sheet(args) -> int:
         from .sweep import _print_probe_diagnostics
         _print_probe_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
+    harmonics = None
+    if args.harmonics or args.pcc or args.rated:
+        from ..sheet.harmonics import harmonics_section
+        try:
+            rated = {e: voltage_argument(v) for e, v in args.rated or []}
+        except argparse.ArgumentTypeError as exc:
+            raise CircuitError([Diagnostic(f"--rated: {exc}", "e.g. --rated Cb 480")]) from None
+        harmonics = harmonics_section(text, name, {"pcc": args.pcc, "nominal": args.nominal,
+                                                   "rated": rated})
     html = render_context(sheet_context(text, name, result=result,
                                         waveform_elements=args.elements,
                                         phasor_elements=args.elements, **tools,
-                                        tolerance=tolerance, formula=formula))
+                                        tolerance=tolerance, formula=formula,
+                                        harmonics=harmonics))
     if args.output == "-":
         sys.stdout.write(html)
         sys.stdout.flush()

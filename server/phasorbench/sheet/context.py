@@ -210,7 +210,8 @@ def _waveform_view(result: dict, names) -> dict:
 def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None = None,
                   now: datetime | None = None, waveform_elements=None, phasor_elements=None,
                   correction: dict | None = None, port: dict | None = None,
-                  tolerance: dict | None = None, formula: dict | None = None) -> dict:
+                  tolerance: dict | None = None, formula: dict | None = None,
+                  harmonics: dict | None = None) -> dict:
     """Everything the sheet shows, for ``templates/sheet.html``.
 
     Parameters
@@ -233,6 +234,8 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         The tolerance section (``sheet/tolerance.py``), shown when given.
     formula : dict, optional
         The formula section (``sheet/formula.py``), shown when given.
+    harmonics : dict, optional
+        The harmonics section (``sheet/harmonics.py``), shown when given.
 
     Returns
     -------
@@ -280,4 +283,5 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         "port": tool_section(port, "port", known),
         "tolerance": tolerance,
         "formula": formula,
+        "harmonics": harmonics,
     }

@@ -14,7 +14,7 @@ import logging
 
 from fastapi import APIRouter, Request
 from fastapi.responses import Response
-from pydantic import Field
+from pydantic import BaseModel, Field
 
 from ..errors import CircuitError
 from . import answers
@@ -32,6 +32,16 @@ log = logging.getLogger("phasorbench.web")
 router = APIRouter()
 
 
+class HarmonicsAsk(BaseModel):
+    """The harmonic study as ``POST /api/harmonics`` takes it, without the circuit."""
+
+    pcc: str | None = None
+    nominal: float | None = None
+    rated: dict[str, float] | None = None
+    node: str | None = None
+    element: str | None = None
+
+
 class SheetBody(CircuitBody):
     """A circuit text and, optionally, what else the sheet should show."""
 
@@ -47,6 +57,8 @@ class SheetBody(CircuitBody):
         None, description="add a tolerance study, as the page's tolerance tab asks for it")
     formula: FormulaAsk | None = Field(
         None, description="add a formula of a probe, as the page's formula tab asks for it")
+    harmonics: HarmonicsAsk | None = Field(
+        None, description="add the harmonic study, as the page's harmonics tab asks for it")
 
 
 def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
@@ -55,6 +67,7 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
     from ..sheet.formula import formula_section
+    from ..sheet.harmonics import harmonics_section
     from ..sheet.tolerance import tolerance_section
 
     text, name = body.netlist, answers.PAGE_FILENAME
@@ -72,7 +85,10 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
                                 if body.tolerance else None),
                             formula=formula_section(
                                 text, name, body.formula.model_dump()
-                                if body.formula else None))
+                                if body.formula else None),
+                            harmonics=harmonics_section(
+                                text, name, body.harmonics.model_dump()
+                                if body.harmonics else None))
     return render_context(context), context["filename"]
 
 
