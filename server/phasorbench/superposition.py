@@ -49,9 +49,11 @@ def circuit_at(circuit: Circuit, frequency: float) -> Circuit:
     (zero for a source with none: a voltage source shorted, a current source opened)."""
     elements = dict(circuit.elements)
     changed = {}
-    for k, (name, e) in enumerate(circuit.elements.items()):
-        if e.kind not in ("voltage", "current"):
-            continue
+    table = circuit.table()
+    for k in [k for k, kind in enumerate(table.kinds) if kind == "voltage" or
+              kind == "current"]:
+        e = table.elements[k]
+        name = e.name
         value = sum((v for f, v in source_components(circuit, e)
                      if math.isclose(f, frequency, rel_tol=SAME_FREQUENCY)), 0j)
         if value != e.value or e.spectrum:

@@ -283,3 +283,17 @@ def test_one_frequency_says_there_is_no_distortion():
     assert r["nodes"]["a"]["thd_pct"] == 0
     assert r["elements"]["R"]["ieee1459"]["pf"] == pytest.approx(1.0)
     assert any("one frequency" in w for w in r["warnings"])
+
+
+def test_big_circuits_keep_order_detail_for_sources_capacitors_and_asked_elements():
+    # common practice, no source: a bounded answer for a big network; the IEEE 1459
+    # totals stay for every element (formula: P = I²R for each resistor)
+    from phasorbench.studies import harmonics as H
+    body = "".join(f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\n" for k in range(H.DETAIL_LIMIT))
+    text = ("frequency 50 Hz\nVs: voltage n0 -> 0 10 V spectrum 5: 10 %\n" + body +
+            f"Cb: capacitor n{H.DETAIL_LIMIT} -> 0 1 mF\n")
+    r = study(text, detail=["R7"], scan=False)
+    with_orders = {n for n, e in r["elements"].items() if "orders" in e}
+    assert with_orders == {"Vs", "Cb", "R7"}
+    r3 = r["elements"]["R3"]
+    assert r3["p_w"] == pytest.approx(r3["rms_i"] ** 2 * 1.0, rel=1e-9)

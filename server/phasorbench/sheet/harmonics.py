@@ -21,7 +21,8 @@ def harmonics_section(text: str, filename: str, ask: dict | None) -> dict | None
     from ..workflow import read_circuit
 
     circuit = read_circuit(text, filename)
-    result = run_harmonics(circuit, ask.get("pcc"), ask.get("nominal"), ask.get("rated"))
+    result = run_harmonics(circuit, ask.get("pcc"), ask.get("nominal"), ask.get("rated"),
+                           detail=[ask["element"]] if ask.get("element") else None)
     node, element = chosen(result, ask.get("node"), ask.get("element"))
     samples = (element_waveforms(result, element, samples_per_period=100)
                if element is not None else None)

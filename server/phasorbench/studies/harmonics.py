@@ -40,6 +40,9 @@ IEEE519_EDITION = "IEEE Std 519-2014, Table 1"
 #: (highest nominal bus voltage of the row in volts, individual harmonic %, THD %).
 IEEE519_TABLE1 = ((1_000.0, 5.0, 8.0), (69_000.0, 3.0, 5.0), (161_000.0, 1.5, 2.5),
                   (math.inf, 1.0, 1.5))
+#: Circuits up to this many elements get each order's phasors of every element; bigger
+#: ones of their sources, capacitors and the elements named in ``detail``.
+DETAIL_LIMIT = 500
 #: Harmonic orders IEEE 519 counts in THD and judges one by one.
 IEEE519_HIGHEST_ORDER = 50
 #: The scan for each capacitor's resonance goes up to this order at least.
@@ -186,8 +189,14 @@ _IEEE1459_KEYS = ("s_va", "p_w", "p1_w", "ph_w", "q1_var", "s1_va", "sn_va", "di
 
 
 def run_harmonics(circuit: Circuit, pcc: str | None = None, nominal: float | None = None,
-                  rated: dict[str, float] | None = None, scan: bool = True) -> dict:
-    """The harmonic study's JSON (studies.md): nodes, elements, pcc, capacitors, warnings."""
+                  rated: dict[str, float] | None = None, scan: bool = True,
+                  detail=None) -> dict:
+    """The harmonic study's JSON (studies.md): nodes, elements, pcc, capacitors, warnings.
+
+    Each element's ``orders`` (its phasors order by order) is given for every element of
+    a circuit of at most ``DETAIL_LIMIT`` elements, else for its sources, capacitors and
+    the element names in ``detail``.
+    """
     _check_request(circuit, pcc, nominal, rated)
     frequencies, solutions = solve_orders(circuit)
     # Hundreds of thousands of small dicts and no cycles among them: the cyclic
@@ -195,13 +204,13 @@ def run_harmonics(circuit: Circuit, pcc: str | None = None, nominal: float | Non
     collecting = gc.isenabled()
     gc.disable()
     try:
-        return _study(circuit, frequencies, solutions, pcc, nominal, rated, scan)
+        return _study(circuit, frequencies, solutions, pcc, nominal, rated, scan, detail)
     finally:
         if collecting:
             gc.enable()
 
 
-def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan) -> dict:
+def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan, detail) -> dict:
     f1 = circuit.frequency
     orders = [f / f1 for f in frequencies]
     k1 = next(k for k, f in enumerate(frequencies)
@@ -221,21 +230,32 @@ def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan) -> dict:
     v = np.stack([s.voltage for s in solutions], axis=1)
     i = np.stack([s.current for s in solutions], axis=1)
     q = ieee1459(v, i, k1, to_rms)
-    v_pct = _ratio_pct(np.abs(v) * to_rms, q["v1"])
-    i_pct = _ratio_pct(np.abs(i) * to_rms, q["i1"])
     thd_v, thd_i = _ratio_pct(q["vh"], q["v1"]), _ratio_pct(q["ih"], q["i1"])
     columns = {key: q[key].tolist() for key in _IEEE1459_KEYS + ("v_rms", "i_rms")}
     kinds = [circuit.elements[name].kind for name in names]
-    elements = {}
-    for e, (name, v_row, i_row, pv, pi, ph) in enumerate(zip(
-            names, _phasor_rows(v), _phasor_rows(i), v_pct, i_pct, q["p_h"].tolist())):
-        elements[name] = {
-            "kind": kinds[e],
-            "rms_v": columns["v_rms"][e], "rms_i": columns["i_rms"][e],
-            "thd_v_pct": thd_v[e], "thd_i_pct": thd_i[e], "p_w": columns["p_w"][e],
-            "ieee1459": {key: columns[key][e] for key in _IEEE1459_KEYS},
-            "orders": {key: {"v": a, "i": b, "pct_v": c, "pct_i": d, "p_w": w}
-                       for key, a, b, c, d, w in zip(keys, v_row, i_row, pv, pi, ph)}}
+    elements = {name: {
+        "kind": kinds[e], "rms_v": columns["v_rms"][e], "rms_i": columns["i_rms"][e],
+        "thd_v_pct": thd_v[e], "thd_i_pct": thd_i[e], "p_w": columns["p_w"][e],
+        "ieee1459": {key: columns[key][e] for key in _IEEE1459_KEYS}}
+        for e, name in enumerate(names)}
+    # Each order's phasors of every element of a small circuit; of a big one, of the
+    # sources, the capacitors and the elements asked for (tens of thousands of elements
+    # × 50 orders would be millions of entries nobody reads).
+    if len(names) <= DETAIL_LIMIT:
+        rows = list(range(len(names)))
+    else:
+        wanted = set(detail or ())
+        rows = [e for e, name in enumerate(names)
+                if kinds[e] in ("voltage", "current", "capacitor") or name in wanted]
+    if rows:
+        vd, id_ = v[rows], i[rows]
+        v_pct = _ratio_pct(np.abs(vd) * to_rms, q["v1"][rows])
+        i_pct = _ratio_pct(np.abs(id_) * to_rms, q["i1"][rows])
+        for e, v_row, i_row, pv, pi, ph in zip(rows, _phasor_rows(vd), _phasor_rows(id_),
+                                               v_pct, i_pct, q["p_h"][rows].tolist()):
+            elements[names[e]]["orders"] = {
+                key: {"v": a, "i": b, "pct_v": c, "pct_i": d, "p_w": w}
+                for key, a, b, c, d, w in zip(keys, v_row, i_row, pv, pi, ph)}
 
     all_nodes = list(solutions[0].node_voltages)
     keep = [k for k, n in enumerate(all_nodes) if n != "0"]

@@ -91,7 +91,8 @@ def harmonics_answer(text: str, ask: dict, settings: Settings) -> dict:
             f"limit of {MAX_HARMONIC_WORK:,} orders × unknowns",
             "give fewer spectrum orders, or run 'phasorbench harmonics' on the command "
             "line")])
-    result = run_harmonics(circuit, ask.get("pcc"), ask.get("nominal"), ask.get("rated"))
+    result = run_harmonics(circuit, ask.get("pcc"), ask.get("nominal"), ask.get("rated"),
+                           detail=[ask["element"]] if ask.get("element") else None)
     node, element = chosen(result, ask.get("node"), ask.get("element"))
     samples = element_waveforms(result, element) if element is not None else None
     result["display"] = harmonics_display(result, node, element, samples)

@@ -192,7 +192,7 @@ def _default_node(result: dict) -> str | None:
 def _default_element(result: dict) -> str | None:
     if result["capacitors"]:
         return next(iter(result["capacitors"]))
-    elements = result["elements"]
+    elements = {n: e for n, e in result["elements"].items() if "orders" in e}
     return max(elements, key=lambda n: elements[n]["thd_i_pct"] or 0.0) if elements else None
 
 
@@ -201,7 +201,8 @@ def chosen(result: dict, node: str | None = None, element: str | None = None):
     else the PCC or the most distorted node, the first capacitor or the most distorted
     current."""
     node = node if node in result["nodes"] else _default_node(result)
-    element = element if element in result["elements"] else _default_element(result)
+    element = (element if "orders" in result["elements"].get(element, {}) else
+               _default_element(result))
     return node, element
 
 
