@@ -133,3 +133,27 @@ def test_discharge_rule_follows_the_nec_clauses():
         ("NEC (NFPA 70) 460.6", 50.0, 60.0)
     high = cap.discharge_requirement(4160.0)
     assert (high["clause"], high["seconds"]) == ("NEC (NFPA 70) 460.28", 300.0)
+
+
+def test_correction_duty_counts_every_order_in_the_circuit():
+    # IEEE Std 18-2002 (check-values C20): peak voltage is the sum of the components'
+    # peaks, rms voltage the root-sum-square. The corrected circuit, written out and
+    # studied order by order (studies/harmonics.py), gives the same duty.
+    import math
+
+    from phasorbench.studies.harmonics import run_harmonics
+    from phasorbench.tools import correct_power_factor
+    from phasorbench.workflow import read_circuit
+    text = ("frequency 50 Hz\nGrid: voltage src -> 0 230 V\nLt: inductor src -> bus 0.2 mH\n"
+            "Load: impedance bus -> 0 4 + j3 ohm\nH5: current bus -> 0 8 A freq 250 Hz\n")
+    r = correct_power_factor(read_circuit(text), "Grid", 0.95, at="bus", rated_voltage=240)
+    duty = r["ieee18"]["duty"]
+    assert r["ieee18"]["orders_hz"] == [50.0, 250.0]
+    corrected = text + "\n".join(r["circuit_lines"]) + "\n"
+    name = r["capacitors"][0]["name"]
+    orders = run_harmonics(read_circuit(corrected), scan=False)["elements"][name]["orders"]
+    mags = [o["v"]["mag"] for o in orders.values()]
+    assert duty["voltage_peak"] == pytest.approx(sum(mags) / 240, rel=1e-6)
+    assert duty["voltage_rms"] == pytest.approx(math.hypot(*mags) / 240, rel=1e-6)
+    # the 5th adds to the peak: above the fundamental's own share
+    assert duty["voltage_peak"] > orders["1"]["v"]["mag"] / 240 * (1 + 1e-3)

@@ -470,7 +470,10 @@ def correction_display(r: dict) -> dict:
                            f"{state}; rated {eng(check['rated_voltage_v'], 'V')}, "
                            f"{eng(check['rated_q_var'], 'var')} per unit at "
                            f"{eng(check['rated_frequency_hz'], 'Hz')}; {check['unit']} runs at "
-                           f"{eng(check['operating_voltage_v'], 'V')}: {duty}",
+                           f"{eng(check['operating_voltage_v'], 'V')}"
+                           + (" at the fundamental, with every order present "
+                              f"({', '.join(eng(f, 'Hz') for f in check['orders_hz'])})"
+                              if check.get("every_order") else "") + f": {duty}",
                            "ok" if check["ok"] else "warn"))
     discharge = r["discharge"]
     energy = f"{eng(r['stored_energy_j'], 'J')} in all"

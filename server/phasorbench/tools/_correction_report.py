@@ -201,6 +201,44 @@ def _ieee18(rows, capacitance, rated_voltage, rated_frequency, freq, warnings) -
     return check
 
 
+def ieee18_every_order(circuit, names, capacitance, rated_voltage, rated_frequency,
+                       warnings) -> dict:
+    """IEEE Std 18-2002 duty of the most stressed unit over every frequency the circuit
+    carries (the corrected circuit with all its sources): rms and peak voltage (the sum
+    of the components' peaks), rms current and reactive power, each order solved on its
+    own (superposition.py)."""
+    from ..solver import solve
+    from ..superposition import circuit_at, source_frequencies
+    rms = 1.0 if circuit.amplitudes == "rms" else 1.0 / math.sqrt(2.0)
+    frequencies = sorted(source_frequencies(circuit))
+    per_unit = {name: {} for name in names}
+    for f in frequencies:
+        solution = solve(circuit_at(circuit, f))
+        where = {n: k for k, n in enumerate(solution.names)}
+        for name in names:
+            per_unit[name][f / rated_frequency] = (abs(solution.voltage[where[name]]) * rms
+                                                   / rated_voltage)
+    checks = {name: cap.ieee18_check(cap.capacitor_duty(pu)) for name, pu in per_unit.items()}
+    worst = max(checks, key=lambda n: max(checks[n]["duty"][k] / checks[n]["limits"][k]
+                                          for k in checks[n]["limits"]))
+    check = checks[worst]
+    names_of = {"voltage_rms": "rms voltage", "voltage_peak": "peak voltage",
+                "current_rms": "rms current", "kvar": "reactive power"}
+    for key in check["exceeded"]:
+        warnings.append(_warning(
+            f"{worst} runs at {100 * check['duty'][key]:.1f} % of its rated {names_of[key]} "
+            f"over every order present, above the {100 * check['limits'][key]:.0f} % "
+            f"continuous limit of {cap.IEEE18_EDITION}",
+            "choose units of a higher rated voltage, or detune the bank"))
+    fundamental = per_unit[worst].get(1.0, 0.0) * rated_voltage
+    check.update({"rated_voltage_v": rated_voltage, "rated_frequency_hz": rated_frequency,
+                  "rated_q_var": cap.reactive_power(capacitance, rated_voltage,
+                                                    rated_frequency),
+                  "unit": worst, "operating_voltage_v": fundamental,
+                  "orders_hz": frequencies, "every_order": True})
+    return check
+
+
 def _discharge(rows, capacitance) -> dict:
     worst = max(rows, key=lambda r: r["voltage_peak_v"])
     rule = cap.discharge_requirement(worst["voltage_rms_v"])

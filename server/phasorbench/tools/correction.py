@@ -31,7 +31,7 @@ from ..superposition import analysis_frequency_only
 from ..model import SOURCE_KINDS, Circuit, Element
 from ..results import contract
 from ..solver import solve
-from ._correction_report import report
+from ._correction_report import ieee18_every_order, report
 from ._network import (canonical_node, derived, fresh_name, input_error,
                        port_model)
 
@@ -129,7 +129,7 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
     >>> round(r["capacitance_f"] * 1e6, 3), round(r["pf_after"], 12)
     (310.438, 0.95)
     """
-    circuit, one_frequency = analysis_frequency_only(circuit)
+    every_order, (circuit, one_frequency) = circuit, analysis_frequency_only(circuit)
     sources, line, group = _source(circuit, source)
     target = _target(target_pf)
     for value, what in ((rated_voltage, "rated voltage"), (rated_frequency, "rated frequency")):
@@ -202,6 +202,12 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
             "leading target", line)
     if one_frequency is not None:
         result["warnings"].append(one_frequency.as_dict())
+        if rated_voltage is not None:
+            # The bank's duty is a question of every order the circuit carries (IEEE 18:
+            # rms and peak over all harmonics), not of the fundamental alone.
+            result["ieee18"] = ieee18_every_order(
+                derived(every_order, add=added), names, capacitance, float(rated_voltage),
+                rated_frequency or circuit.frequency, result["warnings"])
     return result
 
 
