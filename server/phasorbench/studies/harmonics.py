@@ -106,11 +106,11 @@ def _check_request(circuit: Circuit, pcc, nominal, rated) -> None:
     if (pcc is None) != (nominal is None):
         problems.append(Diagnostic(
             "the PCC check needs both the node and its nominal voltage",
-            "give --pcc NODE --nominal VOLTS (the bus's nominal line-to-line voltage)"))
+            "give the PCC node and the bus's nominal (line-to-line) voltage, e.g. 400 V"))
     if nominal is not None and not (isinstance(nominal, (int, float)) and
                                     math.isfinite(nominal) and nominal > 0):
         problems.append(Diagnostic("the nominal voltage must be a finite number above 0 V",
-                                   "e.g. --nominal 400"))
+                                   "the bus's nominal (line-to-line) voltage, e.g. 400 V"))
     capacitors = [n for n, e in circuit.elements.items() if e.kind == "capacitor"]
     for name, volts in (rated or {}).items():
         e = circuit.elements.get(name)
