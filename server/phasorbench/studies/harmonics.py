@@ -372,7 +372,7 @@ def _capacitors(circuit, elements, rated, keys, orders, k1, scan, warnings) -> d
 def _resonance_orders(circuit, names, orders) -> dict[str, list[float]]:
     """The orders of the peaks of |Z| between each capacitor's terminals (the capacitor
     included: its parallel resonance with the network), refined on the exact solve."""
-    from .engine import DENSE_LIMIT, sweep_response
+    from .engine import DENSE_LIMIT, SweepEngine
     from .probes import parse_probe
     from .resonance import peak_frequency
     from .sweep import grid
@@ -387,7 +387,8 @@ def _resonance_orders(circuit, names, orders) -> dict[str, list[float]]:
     points = SCAN_POINTS_SMALL if system_size <= 2 * DENSE_LIMIT else SCAN_POINTS_LARGE
     frequencies = grid(f1, f1 * top, points, "log")
     unique = list({p.text: p for p in probes.values()}.values())
-    response = sweep_response(circuit, unique, frequencies)
+    engine = SweepEngine(circuit, unique)
+    response = engine.response(frequencies)
     out = {}
     for name, probe in probes.items():
         mag = np.abs(response.values[probe.text])
@@ -399,7 +400,8 @@ def _resonance_orders(circuit, names, orders) -> dict[str, list[float]]:
                 continue
             if abs(mag[k] - mag[k - 1]) <= 1e-9 * scale:
                 continue
-            f0 = peak_frequency(circuit, probe, frequencies[k - 1], frequencies[k + 1])
+            f0 = peak_frequency(SweepEngine(circuit, [probe]), probe, frequencies[k - 1],
+                                frequencies[k + 1])
             found.append(f0 / f1)
         out[name] = found
     return out

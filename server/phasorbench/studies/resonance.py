@@ -121,7 +121,7 @@ def _bandwidth(engine, probe, f, mag, k, level, kind, f0):
     return f_hi - f_lo
 
 
-def peak_frequency(circuit, probe, lo: float, hi: float) -> float:
+def peak_frequency(engine: SweepEngine, probe, lo: float, hi: float) -> float:
     """The frequency of the peak of |probe| between ``lo`` and ``hi`` (Hz), refined on the
     exact solve like every resonance here (the harmonic study's capacitor scan)."""
-    return _refine(circuit, probe, lo, hi, 1.0)
+    return _refine(engine, probe, lo, hi, 1.0)
