@@ -26,7 +26,7 @@ def test_local_cluster_equals_in_process():
     circuit = read_circuit(FILTER)
     here = run_tolerance(circuit, ["V(out)"], runs=4500, seed=11, limits=["V(out) 0..5"])
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=None) as cluster:
+                                  host="127.0.0.1", dashboard_address=":0") as cluster:
         with distributed.Client(cluster) as client:
             chunks = cluster_chunks(circuit, ["V(out)"], ["V(out) 0..5"], cluster
                                     .scheduler_address, client=client)

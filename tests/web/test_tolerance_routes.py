@@ -89,7 +89,7 @@ def test_server_scheduler_setting_gives_the_same_numbers(bench_samples):
     body = {"netlist": DIVIDER, "probes": ["V(out)"], "runs": 2500, "seed": 4}
     here = ThreadedApi(make_app(bench_samples)).post("/api/tolerance", json=body).json()
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=None) as cluster:
+                                  host="127.0.0.1", dashboard_address=":0") as cluster:
         app = make_app(bench_samples, scheduler=cluster.scheduler_address)
         there = ThreadedApi(app).post("/api/tolerance", json=body).json()
     # common practice, no source: the server's scheduler setting changes where, not what
