@@ -132,6 +132,21 @@ class AnalysisError(CircuitError):
     """The equations could not be solved numerically (singular matrix, NaN)."""
 
 
+#: Arithmetic failures that mean a number computed from the circuit left the range of
+#: double-precision floats (the square of 1e200, an exponent past the range). The
+#: shells map them once, as an input problem (exit 2, HTTP 422), never as a crash.
+NUMERIC_RANGE_ERRORS = (OverflowError, FloatingPointError)
+
+
+def out_of_range(exc: BaseException | None = None) -> AnalysisError:
+    """The ``AnalysisError`` a shell reports for one of ``NUMERIC_RANGE_ERRORS``."""
+    return AnalysisError([Diagnostic(
+        "a number computed from this circuit is outside the range of floating point "
+        "(about 1e-308 to 1e308 in magnitude): the values are too extreme to solve",
+        "scale the values to what the equipment has (for example kΩ and µF rather than "
+        "1e300 Ω or 1e-320 V)")])
+
+
 #: A source line longer than this is shown as a window around the caret.
 SHOWN_LINE = 160
 

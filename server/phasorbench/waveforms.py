@@ -94,7 +94,7 @@ def _finite(x: float) -> float:
     """A plain float for JSON: numpy scalars become float, a non-finite value is an error."""
     x = float(x)
     if not math.isfinite(x):
-        raise ValueError("a sampled value is not finite")
+        raise OverflowError("a sampled value is not finite")    # errors.NUMERIC_RANGE_ERRORS
     return x
 
 

@@ -208,3 +208,55 @@ def test_placement_flags_without_a_correction_are_refused(tmp_path, capsys):
     path.write_text(MOTOR, encoding="utf-8")
     status, _, err = run(["sheet", str(path), "--correct-at", "a"], capsys)
     assert status == 2 and "--correct SOURCE PF" in err
+
+
+# ---- -o writes regular files only (issue 9, item 8) --------------------------------
+
+def _special(kind: str, tmp_path):
+    path = tmp_path / f"out-{kind}"
+    if kind == "fifo":
+        os.mkfifo(path)
+    elif kind == "symlink":
+        (tmp_path / "target.html").write_text("keep me", encoding="utf-8")
+        path.symlink_to(tmp_path / "target.html")
+    elif kind == "folder":
+        path.mkdir()
+    return path
+
+
+@pytest.mark.parametrize("kind, words", [("fifo", "FIFO"), ("symlink", "symbolic link"),
+                                         ("folder", "folder")])
+def test_output_that_is_not_a_regular_file_is_refused(kind, words, rc_file, tmp_path, capsys):
+    # POSIX.1-2017, rename(): renaming over a FIFO or a link replaces that directory entry,
+    # so a FIFO would silently become a plain file and a link lose its target; refused
+    path = _special(kind, tmp_path)
+    before = os.lstat(path)
+    status, stdout, stderr = run(["sheet", str(rc_file), "-o", str(path)], capsys)
+    assert status == 2 and words in stderr and "not written" in stderr
+    after = os.lstat(path)
+    assert (after.st_mode, after.st_ino) == (before.st_mode, before.st_ino)
+    if kind == "symlink":
+        assert (tmp_path / "target.html").read_text(encoding="utf-8") == "keep me"
+    assert not [p for p in tmp_path.iterdir() if p.name.startswith(".sheet-")]
+
+
+def test_a_device_node_is_refused_without_touching_it():
+    # POSIX.1-2017, <sys/stat.h> S_ISCHR: /dev/null is a character device; only looked at
+    from phasorbench.cli.sheet import refusal
+    assert "device" in refusal(os.devnull)
+    assert refusal(os.devnull + "-not-there") is None
+
+
+def test_an_existing_regular_file_is_replaced_whole(rc_file, tmp_path, capsys):
+    # common practice, no source: a regular file is what -o is for
+    out = tmp_path / "old.html"
+    out.write_text("old", encoding="utf-8")
+    assert run(["sheet", str(rc_file), "-o", str(out)], capsys)[0] == 0
+    assert out.read_text(encoding="utf-8").lower().startswith("<!doctype html>")
+
+
+def test_help_says_links_are_refused(capsys):
+    # common practice, no source: the issue asks --help to say what happens to a symlink
+    with pytest.raises(SystemExit):
+        main(["sheet", "--help"])
+    assert "symbolic link" in capsys.readouterr().out

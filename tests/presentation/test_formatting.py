@@ -2,6 +2,7 @@
 
 import cmath
 import math
+from decimal import Decimal
 
 import pytest
 from hypothesis import given
@@ -209,3 +210,31 @@ def test_extreme_finite_values_format_without_error():
     assert fmt.eng(2.22507e-313, "S") == "2.225e-313 S"
     assert fmt.eng(5e-324, "V") == "4.941e-324 V"
     assert fmt.eng(-1.7976931348623157e308, "W") == "-1.798e308 W"
+
+
+# ---- the ends of the float range (issue 9, item 5) --------------------------------
+
+@pytest.mark.parametrize("value, expected", [
+    # IEEE 754-2019, section 3.3, binary64: largest finite 1.7976931348623157e308, smallest
+    # subnormal 4.9406564584124654e-324; 4 significant digits of each (from memory)
+    (1.7976931348623157e308, "1.798e308 V"),
+    (-1.7976931348623157e308, "-1.798e308 V"),
+    (5e-324, "4.941e-324 V"),
+    (1e-323, "9.881e-324 V"),
+    (2.2250738585072014e-308, "2.225e-308 V"),         # smallest normal
+])
+def test_eng_at_the_ends_of_the_float_range(value, expected):
+    assert fmt.eng(value, "V") == expected
+
+
+@given(st.floats(allow_nan=False, allow_infinity=False))
+def test_every_finite_float_formats(value):
+    # IEEE 754-2019 binary64: every finite value, subnormals included, reads back within
+    # the shown digits (common practice, no source); no exception anywhere in the range
+    for text in (fmt.eng(value, "V"), fmt.plain(value), fmt.rect(complex(value, -value / 3), "Ω"),
+                 fmt.phasor({"re": value, "im": value, "mag": abs(value), "deg": 45.0}, "A")):
+        assert text and "inf" not in text and "nan" not in text
+    if value != 0:      # read back in decimal: "1.798e308" is past the largest float
+        number, _, rest = fmt.eng(value, "V").partition(" ")
+        back = Decimal(number) * Decimal(10) ** PREFIX_POWERS.get(rest[:-1], 0)
+        assert abs(back - Decimal(value)) <= Decimal("5.0001e-4") * abs(Decimal(value))

@@ -387,3 +387,89 @@ def test_origin_with_the_ephemeral_port_of_the_request_is_served(make_api):
     other = api.post("/api/solve", json={"netlist": CAP_CIRCUIT},
                      headers={"origin": "http://127.0.0.1:43211"})
     assert (ok.status_code, other.status_code) == (200, 403)
+
+
+# ---- any Unicode, any finite float: 200 or 422, never 500 (issue 9, items 4 and 5) ----
+
+SMALL = "frequency 50 Hz\nV1: voltage a -> 0 10 V\nR1: resistor a -> 0 5 ohm\n"
+
+#: Every POST route with a body that is valid but for the text under test.
+POST_BODIES = {
+    "/api/check": {},
+    "/api/solve": {},
+    "/api/waveforms": {"elements": ["R1"]},
+    "/api/phasors": {"elements": ["R1"]},
+    "/api/three-phase": {"group": "G1"},
+    "/api/correct": {"source": "V1", "target": 0.95},
+    "/api/port": {"a": "a", "b": "0"},
+    "/api/sweep": {"probes": ["V(a)"], "points": 5},
+    "/api/sheet": {},
+}
+
+
+def _post_raw(api, route: str, body: dict) -> httpx.Response:
+    # json.dumps writes a lone surrogate as the escape \ud800, which is valid JSON text
+    # (RFC 8259, section 7) that decodes to a string no UTF-8 encoder accepts
+    return api.post(route, content=json.dumps(body), headers={"content-type": "application/json"})
+
+
+@pytest.mark.parametrize("route", sorted(POST_BODIES))
+@pytest.mark.parametrize("where", ["title", "comment", "name"])
+def test_a_lone_surrogate_in_the_circuit_is_a_422_at_its_place(api, route, where):
+    # Unicode 15.0, section 3.9 (D76): a lone surrogate is no character; RFC 8259, section 8.2
+    # warns such strings exist in JSON. Expected: a clear 422 pointing at it, never a 500.
+    text = {"title": "title bad \ud800 title\n" + SMALL,
+            "comment": SMALL + "# \udfff\n",
+            "name": SMALL + "R\ud800: resistor a -> 0 1 ohm\n"}[where]
+    r = _post_raw(api, route, {"netlist": text, **POST_BODIES[route]})
+    assert r.status_code == 422, (route, r.status_code, r.text[:200])
+    error = strict_json(r)["errors"][0]
+    line = {"title": 1, "comment": 4, "name": 4}[where]
+    assert (error["line"], "surrogate" in error["message"]) == (line, True)
+
+
+@pytest.mark.parametrize("route, field", [("/api/phasors", "elements"), ("/api/port", "a"),
+                                          ("/api/three-phase", "group"), ("/api/correct", "source"),
+                                          ("/api/sweep", "probes"), ("/api/sheet", "elements")])
+def test_a_lone_surrogate_in_any_field_is_a_422(api, route, field):
+    # Unicode 15.0, section 3.9 (D76): as above, for the fields beside the circuit
+    body = {"netlist": SMALL, **POST_BODIES[route]}
+    body[field] = ["\ud800"] if isinstance(body.get(field), list) or field == "elements" else "\ud800"
+    r = _post_raw(api, route, body)
+    assert r.status_code == 422, (route, r.text[:200])
+    assert field in strict_json(r)["errors"][0]["message"]
+
+
+def test_other_unicode_in_the_title_solves(api):
+    # common practice, no source: astral characters (a surrogate PAIR in the JSON escape),
+    # combining marks and right-to-left text are characters like any other
+    title = "Ωmega 😀 e\u0301 \u05e9\u05dc\u05d5\u05dd \u4e2d\u6587"
+    for route in ("/api/solve", "/api/sheet"):
+        r = _post_raw(api, route, {"netlist": f"title {title}\n" + SMALL})
+        assert r.status_code == 200, (route, r.text[:200])
+    assert strict_json(_post_raw(api, "/api/solve", {"netlist": f"title {title}\n" + SMALL}))["title"] == title
+
+
+EXTREMES = ["1.7976931348623157e308", "1e308", "1e300", "1e-300", "2.2250738585072014e-308",
+            "1e-323", "5e-324"]
+
+
+@pytest.mark.filterwarnings("ignore::RuntimeWarning")     # numpy's overflow notes, as served
+@pytest.mark.parametrize("value", EXTREMES)
+@pytest.mark.parametrize("place", ["frequency", "source", "resistor", "capacitor"])
+def test_extreme_finite_values_answer_200_or_422_on_every_route(api, value, place):
+    # IEEE 754-2019, section 3.3: the ends of binary64 (largest finite, smallest normal,
+    # subnormals); expected by the issue's contract: any finite float gets 200 or 422
+    text = {"frequency": f"frequency {value} Hz\nV1: voltage a -> 0 10 V\n"
+                         "R1: resistor a -> b 1 ohm\nC1: capacitor b -> 0 1 uF\n",
+            "source": f"frequency 50 Hz\nV1: voltage a -> 0 {value} V\n"
+                      "R1: resistor a -> b 1 ohm\nC1: capacitor b -> 0 1 uF\n",
+            "resistor": f"frequency 50 Hz\nV1: voltage a -> 0 10 V\n"
+                        f"R1: resistor a -> b {value} ohm\nC1: capacitor b -> 0 1 uF\n",
+            "capacitor": f"frequency 50 Hz\nV1: voltage a -> 0 10 V\n"
+                         f"R1: resistor a -> b 1 ohm\nC1: capacitor b -> 0 {value} F\n"}[place]
+    for route, extra in POST_BODIES.items():
+        r = api.post(route, json={"netlist": text, **extra})
+        assert r.status_code in (200, 422), (route, r.status_code, r.text[:200])
+        if r.status_code == 422:
+            assert strict_json(r)["errors"][0]["message"]

@@ -24,7 +24,7 @@ import traceback
 
 from .. import __version__
 from ..blas import pin_before_import
-from ..errors import CircuitError, Diagnostic, answer
+from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, Diagnostic, answer, out_of_range
 from .common import (EXIT_INPUT, EXIT_INTERNAL, EXIT_OK, InputFileError, dump_json, load_source,
                      print_diagnostics, read_source)
 
@@ -73,6 +73,14 @@ def main(argv: list[str] | None = None) -> int:
         name = getattr(args, "source_name", None) or getattr(args, "file", "<circuit>")
         print_diagnostics(exc.diagnostics, name, getattr(args, "source_text", None))
         _json_errors(args, exc.diagnostics)
+        return EXIT_INPUT
+    except NUMERIC_RANGE_ERRORS as exc:
+        if os.environ.get("PHASORBENCH_DEBUG") == "1":
+            traceback.print_exc()
+        name = getattr(args, "source_name", None) or getattr(args, "file", "<circuit>")
+        problem = out_of_range(exc).diagnostics
+        print_diagnostics(problem, name, None)
+        _json_errors(args, problem)
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130

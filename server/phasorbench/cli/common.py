@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import json
+import os
+import stat
 import sys
 
 from ..errors import Diagnostic, format_diagnostic, source_lines
@@ -17,16 +19,65 @@ class InputFileError(Exception):
     """The circuit file could not be read (missing, not text)."""
 
 
+#: Largest circuit source read, in bytes. The parser takes at most 400,000 lines
+#: (``parser.MAX_LINES``); 64 MB is over 150 bytes for each of them, so no circuit the
+#: parser accepts is cut, while ``/dev/zero`` or a runaway pipe ends with a message
+#: instead of filling the memory.
+MAX_SOURCE_BYTES = 64 * 1024 * 1024
+
+
+def _too_large(name: str) -> InputFileError:
+    return InputFileError(f"{name}: error: larger than {MAX_SOURCE_BYTES // (1024 * 1024)} MB, "
+                          "the most a circuit file may hold; check that this is the right "
+                          "file")
+
+
+def _read_capped(handle, name: str) -> bytes:
+    data = handle.read(MAX_SOURCE_BYTES + 1)
+    if len(data) > MAX_SOURCE_BYTES:
+        raise _too_large(name)
+    return data
+
+
+def _open_regular(path: str):
+    """Open ``path`` for reading only if it is a regular file.
+
+    The file is opened without blocking (a FIFO with no writer would otherwise hang
+    here) and checked on the open handle, so what is read is what was checked.
+    """
+    fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
+    try:
+        mode = os.fstat(fd).st_mode
+        if stat.S_ISDIR(mode):
+            raise InputFileError(f"{path}: error: is a folder, not a circuit file")
+        if not stat.S_ISREG(mode):
+            what = ("a FIFO (named pipe)" if stat.S_ISFIFO(mode) else
+                    "a device" if stat.S_ISCHR(mode) or stat.S_ISBLK(mode) else
+                    "a socket" if stat.S_ISSOCK(mode) else "not a regular file")
+            raise InputFileError(f"{path}: error: is {what}, not a circuit file; to read "
+                                 "from a pipe, give - and send the circuit to standard input")
+        if hasattr(os, "O_NONBLOCK"):
+            os.set_blocking(fd, True)
+        return os.fdopen(fd, "rb")
+    except BaseException:
+        os.close(fd)
+        raise
+
+
 def read_source(path: str) -> tuple[str, str]:
-    """Return (text, display name) of a circuit file, or of standard input for ``-``."""
+    """Return (text, display name) of a circuit file, or of standard input for ``-``.
+
+    Only regular files are read (standard input may be anything), at most
+    ``MAX_SOURCE_BYTES``.
+    """
     if path == "-":
-        data = sys.stdin.buffer.read()
         name = "<stdin>"
+        data = _read_capped(sys.stdin.buffer, name)
     else:
         name = path
         try:
-            with open(path, "rb") as handle:
-                data = handle.read()
+            with _open_regular(path) as handle:
+                data = _read_capped(handle, name)
         except FileNotFoundError:
             raise InputFileError(f"{name}: error: no such file") from None
         except IsADirectoryError:

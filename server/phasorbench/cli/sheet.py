@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import stat
 import sys
 import tempfile
 
@@ -30,7 +31,10 @@ def add_sheet_command(commands) -> None:
                     "power balance, the diagrams, the warnings and the safety cautions.")
     sheet.add_argument("file", metavar="FILE", help="a .circuit file, or - for standard input")
     sheet.add_argument("-o", "--output", metavar="OUT.html", default="-",
-                       help="where to write the sheet (default: standard output)")
+                       help="where to write the sheet (default: standard output); a new "
+                            "file, or an existing regular file it replaces whole. A "
+                            "symbolic link, a FIFO, a device or a folder at that path is "
+                            "refused (links are not followed)")
     sheet.add_argument("--element", action="append", metavar="NAME", dest="elements",
                        help="draw this element's waveform and phasors (repeat for more); "
                             "default: each source and reactive element, capped")
@@ -79,8 +83,43 @@ def add_sheet_command(commands) -> None:
     sheet.set_defaults(run=command_sheet)
 
 
+class OutputRefused(Exception):
+    """The ``-o`` path holds something a sheet must not replace."""
+
+
+def refusal(path: str) -> str | None:
+    """Why ``path`` must not be replaced by a sheet, or None when it may be.
+
+    A sheet goes to a new file or replaces a regular file. Renaming over a FIFO, a
+    device node or a socket would swap a special file for a plain one (another
+    program's pipe, ``/dev/null``); over a symbolic link it would replace the link,
+    not the file it points to, so links are refused too rather than followed.
+    """
+    try:
+        info = os.lstat(path)
+    except FileNotFoundError:
+        return None
+    except OSError as exc:
+        return f"cannot look at it ({exc.strerror or exc})"
+    mode = info.st_mode
+    if stat.S_ISREG(mode):
+        return None
+    if stat.S_ISLNK(mode):
+        return ("is a symbolic link; a sheet replaces regular files only (give the path "
+                "of the file itself)")
+    if stat.S_ISDIR(mode):
+        return "is a folder; give a file name, e.g. OUT.html"
+    what = ("a FIFO (named pipe)" if stat.S_ISFIFO(mode) else
+            "a device" if stat.S_ISCHR(mode) or stat.S_ISBLK(mode) else
+            "a socket" if stat.S_ISSOCK(mode) else "not a regular file")
+    return f"is {what}; a sheet replaces regular files only (use -o - for standard output)"
+
+
 def _write(path: str, html: str) -> None:
     """Write ``html`` to ``path`` whole or not at all (a temporary file, then a rename)."""
+    reason = refusal(path)
+    if reason is not None:
+        raise OutputRefused(reason)
     folder = os.path.dirname(os.path.abspath(path))
     handle, temporary = tempfile.mkstemp(prefix=".sheet-", suffix=".html", dir=folder)
     try:
@@ -157,6 +196,9 @@ def command_sheet(args) -> int:
     else:
         try:
             _write(args.output, html)
+        except OutputRefused as exc:
+            print(f"{args.output}: error: not written: the path {exc}", file=sys.stderr)
+            return EXIT_INPUT
         except OSError as exc:
             print(f"{args.output}: error: cannot write the sheet ({exc.strerror or exc})",
                   file=sys.stderr)

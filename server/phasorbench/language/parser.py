@@ -403,6 +403,31 @@ class CircuitParser:
             circuit.frequency = self.frequency
 
 
+#: Three-phase block kinds stand for three elements each.
+BLOCK_KINDS = frozenset({"voltage3", "load3"})
+
+
+def count_elements(text: str) -> int:
+    """Elements ``text`` defines, counted as the parser reads its lines.
+
+    Every line the parser takes for an element counts, however it is spaced
+    (``R1:resistor``, ``R1 : resistor``, a tab before the colon), and so does an
+    element line it drops for a bad or repeated name; a three-phase block counts three.
+
+    >>> count_elements("V1 : voltage a -> 0 1\\nR1:resistor a -> 0 1\\nG: load3 wye a b c -> n 1")
+    5
+    """
+    parser = CircuitParser(text, "<count>")
+    count = 0
+    for line in parser.classify():
+        if line.kind == "simple":
+            count += 1
+        elif line.kind == "element":
+            kind = line.tokens[2].text.lower() if len(line.tokens) > 2 else ""
+            count += 3 if kind in BLOCK_KINDS else 1
+    return count + parser.unread_elements     # lines dropped for a bad name, counted in classify
+
+
 def parse_circuit(text: str, filename: str = "<circuit>", *, strict: bool = True):
     """Read circuit text into a ``Circuit``.
 

@@ -11,14 +11,15 @@ from __future__ import annotations
 import asyncio
 import functools
 import logging
-
-from typing import Literal
+import re
+from typing import Annotated, Literal
 
 from fastapi import Request
 from fastapi.responses import Response
-from pydantic import BaseModel, Field
+from pydantic import AfterValidator, BaseModel, Field
+from pydantic_core import PydanticCustomError
 
-from ..errors import CircuitError
+from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
 from . import answers
 from .jsonsafe import StrictJSONResponse
 from .samples import list_samples
@@ -31,10 +32,33 @@ INTERNAL_ERROR = ("internal error: the server could not finish this request "
                   "(the details are in the server's log)")
 
 
+_SURROGATE = re.compile("[\ud800-\udfff]")
+
+
+def _no_lone_surrogates(value: str) -> str:
+    """JSON can carry ``"\\ud800"`` alone, which is no character: such a text is refused
+    here, with its place, before any job sees it (it cannot be echoed back as UTF-8)."""
+    found = _SURROGATE.search(value)
+    if found is None:
+        return value
+    before = value[:found.start()]
+    line = before.count("\n") + 1
+    column = found.start() - (before.rfind("\n") + 1) + 1
+    raise PydanticCustomError(
+        "lone_surrogate",
+        "holds a lone UTF-16 surrogate (U+{code}) at line {line}, column {column}, which "
+        "is not a character",
+        {"code": f"{ord(found.group()):04X}", "line": line, "column": column})
+
+
+#: Every text field of a request: any Unicode character, but no lone surrogate.
+Text = Annotated[str, AfterValidator(_no_lone_surrogates)]
+
+
 class CircuitBody(BaseModel):
     """A circuit text in the project's circuit language."""
 
-    netlist: str = Field(description="the circuit text, as typed in the editor or kept in a .circuit file")
+    netlist: Text = Field(description="the circuit text, as typed in the editor or kept in a .circuit file")
 
 
 class SolveBody(CircuitBody):
@@ -60,7 +84,7 @@ class RowsBody(CircuitBody):
 class ViewBody(CircuitBody):
     """A circuit text, the elements a picture should show, and optionally its size."""
 
-    elements: list[str] = Field(description="element names, as in the circuit's results")
+    elements: list[Text] = Field(description="element names, as in the circuit's results")
     width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
                               description="picture width in px (the page sends its panel's width "
                                           "so text is drawn at its true size)")
@@ -74,7 +98,7 @@ class ViewBody(CircuitBody):
 class GroupViewBody(CircuitBody):
     """A circuit text, one of its three-phase blocks, and optionally the picture's size."""
 
-    group: str = Field(description="a three-phase block (voltage3 or load3) of the circuit")
+    group: Text = Field(description="a three-phase block (voltage3 or load3) of the circuit")
     width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
                               description="picture width in px")
     height: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
@@ -88,12 +112,12 @@ class CorrectionAsk(BaseModel):
     """A power-factor correction to size: the fields of ``POST /api/correct`` after the
     circuit (the sheet asks for one in the same words)."""
 
-    source: str = Field(description="an independent voltage or current source, or a voltage3 block")
+    source: Text = Field(description="an independent voltage or current source, or a voltage3 block")
     target: float = Field(description="target power factor in (0, 1], lagging unless leading")
-    at: str | list[str] | None = Field(
+    at: Text | list[Text] | None = Field(
         None, description="where the capacitor goes: a node (to ground), or three line nodes "
                           "for a bank; left out, across the source's terminals (its lines)")
-    across: list[str] | None = Field(None, min_length=2, max_length=2,
+    across: list[Text] | None = Field(None, min_length=2, max_length=2,
                                      description="two nodes: a capacitor across them")
     bank: Literal["wye", "delta"] | None = Field(
         None, description="connection of a three-phase bank (default wye)")
@@ -106,8 +130,8 @@ class CorrectionAsk(BaseModel):
 class PortAsk(BaseModel):
     """The two nodes of a port: the fields of ``POST /api/port`` after the circuit."""
 
-    a: str = Field(description="the port's first node")
-    b: str = Field(description="the port's second node (0 for ground)")
+    a: Text = Field(description="the port's first node")
+    b: Text = Field(description="the port's second node (0 for ground)")
 
 
 class CorrectionBody(CircuitBody, CorrectionAsk):
@@ -138,6 +162,11 @@ async def run_job(request: Request, job, *args, respond=StrictJSONResponse):
             state.solve_pool, functools.partial(job, *args, state.settings))
     except CircuitError as exc:
         return StrictJSONResponse(answers.diagnostics_answer(exc.diagnostics), status_code=422)
+    except NUMERIC_RANGE_ERRORS as exc:
+        log.warning("request %s %s: numbers out of range", request.method, request.url.path,
+                    exc_info=exc)
+        return StrictJSONResponse(answers.diagnostics_answer(out_of_range(exc).diagnostics),
+                                  status_code=422)
     except Exception:
         log.exception("request %s %s failed", request.method, request.url.path)
         return error_response(500, INTERNAL_ERROR)

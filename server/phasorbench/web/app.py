@@ -84,6 +84,15 @@ async def _invalid_request(request: Request, exc: RequestValidationError):
     errors = []
     for err in exc.errors():
         where = ".".join(str(p) for p in err.get("loc", ()) if p != "body")
+        if err.get("type") == "lone_surrogate":
+            # Said of the field, with the place inside it, so the editor can mark it.
+            item = api.error_item(f"{where or 'the body'} {err['msg']}",
+                                  "remove the character or retype it; only whole "
+                                  "characters can be read")
+            if where == "netlist":
+                item.update(line=err["ctx"]["line"], column=err["ctx"]["column"])
+            errors.append(item)
+            continue
         message = f"request body: {err.get('msg', 'invalid')}" + (f" ({where})" if where else "")
         errors.append(api.error_item(
             message, 'send JSON like {"netlist": "frequency 50 Hz\\n..."}'))

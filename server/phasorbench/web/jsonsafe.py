@@ -7,6 +7,7 @@ write ``NaN`` (not JSON at all), so each float is checked once here.
 from __future__ import annotations
 
 import math
+import re
 
 from fastapi.responses import JSONResponse
 
@@ -39,9 +40,27 @@ def jsonable(value):
     raise TypeError(f"cannot send {type(value).__name__} as JSON")
 
 
+_SURROGATE = re.compile("[\ud800-\udfff]")
+
+
 class StrictJSONResponse(JSONResponse):
     """A JSON response written by the one encoder (``jsonout.dumps``): strict JSON,
     non-finite floats as null, numpy values unwrapped, without a cleaning copy first."""
 
     def render(self, content) -> bytes:
         return dumps(content)
+
+
+def utf8(text: str) -> bytes:
+    """``text`` as UTF-8, a lone surrogate (which UTF-8 cannot hold) as U+FFFD.
+
+    The request models refuse lone surrogates; this is the last resort for any that an
+    answer still quotes, so a stray one costs a replacement character, never a 500.
+
+    >>> utf8("a\\ud800b")
+    b'a\\xef\\xbf\\xbdb'
+    """
+    try:
+        return text.encode("utf-8")
+    except UnicodeEncodeError:
+        return _SURROGATE.sub("\ufffd", text).encode("utf-8")

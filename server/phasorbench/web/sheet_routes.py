@@ -16,9 +16,9 @@ from fastapi import APIRouter, Request
 from fastapi.responses import Response
 from pydantic import BaseModel, Field
 
-from ..errors import CircuitError
+from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
 from . import answers
-from .api import INTERNAL_ERROR, CircuitBody, CorrectionAsk, PortAsk, error_response
+from .api import INTERNAL_ERROR, CircuitBody, CorrectionAsk, PortAsk, Text, error_response
 from .jsonsafe import StrictJSONResponse
 from .limits import check_size
 from .settings import Settings
@@ -45,7 +45,7 @@ class HarmonicsAsk(BaseModel):
 class SheetBody(CircuitBody):
     """A circuit text and, optionally, what else the sheet should show."""
 
-    elements: list[str] | None = Field(
+    elements: list[Text] | None = Field(
         None, description="elements whose waveforms and phasors the sheet draws (the page's "
                           "selection); left out, each source and reactive element, capped")
     correct: CorrectionAsk | None = Field(
@@ -114,6 +114,11 @@ async def sheet(body: SheetBody, request: Request):
             functools.partial(sheet_answer, body, settings))
     except CircuitError as exc:
         return StrictJSONResponse(answers.diagnostics_answer(exc.diagnostics), status_code=422)
+    except NUMERIC_RANGE_ERRORS as exc:
+        log.warning("request %s %s: numbers out of range", request.method, request.url.path,
+                    exc_info=exc)
+        return StrictJSONResponse(answers.diagnostics_answer(out_of_range(exc).diagnostics),
+                                  status_code=422)
     except Exception:
         log.exception("request %s %s failed", request.method, request.url.path)
         return error_response(500, INTERNAL_ERROR)

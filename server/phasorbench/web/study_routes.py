@@ -42,11 +42,11 @@ class DrawAsk(BaseModel):
 class SweepBody(api.CircuitBody):
     """A circuit text, the probes to observe and optionally the range."""
 
-    probes: list[str] = Field(description="probes: V(n), V(a, b), I(E), Z(a, b), Z(n), X/Y")
+    probes: list[api.Text] = Field(description="probes: V(n), V(a, b), I(E), Z(a, b), Z(n), X/Y")
     start: float | None = Field(None, alias="from", description="lowest frequency, Hz")
     stop: float | None = Field(None, alias="to", description="highest frequency, Hz")
     points: int | None = Field(None, description="number of frequencies (2 to 100,000)")
-    spacing: str | None = Field(None, description="log (default) or linear")
+    spacing: api.Text | None = Field(None, description="log (default) or linear")
     draw: DrawAsk | None = Field(None, description="add the response picture (svg) and "
                                                    "the page's strings (display)")
     arrays: bool = Field(True, description="false leaves out the per-point arrays "

@@ -46,8 +46,15 @@ def nice_ceiling(x: float) -> float:
     decade = 10.0 ** math.floor(math.log10(x))
     for step in _NICE_STEPS:
         if step * decade >= x * (1 - 1e-12):
-            return step * decade
-    return 10.0 * decade
+            return _usable(step * decade, x)
+    return _usable(10.0 * decade, x)
+
+
+def _usable(ceiling: float, x: float) -> float:
+    """``ceiling``, or ``x`` itself where a power of ten left the float range (a
+    subnormal's decade is 0, the decade above 1.8e308 is infinite): a scale one
+    divides by is never 0 or infinite."""
+    return ceiling if ceiling > 0 and math.isfinite(ceiling) else x
 
 
 def num(x: float) -> str:
