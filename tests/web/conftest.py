@@ -70,6 +70,14 @@ def make_app(bench_samples: Path, **overrides):
     return create_app(settings)
 
 
+def run_async(coroutine):
+    """``asyncio.run`` in a thread of its own: the browser tests' Playwright keeps an
+    event loop running in the main thread, where a second one cannot start."""
+    from concurrent.futures import ThreadPoolExecutor
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        return pool.submit(asyncio.run, coroutine).result()
+
+
 class Api:
     """A small synchronous client over ``httpx.ASGITransport`` for one app."""
 
@@ -82,15 +90,7 @@ class Api:
             return await client.request(method, url, **kw)
 
     def request(self, method: str, url: str, **kw) -> httpx.Response:
-        try:
-            asyncio.get_running_loop()
-        except RuntimeError:
-            return asyncio.run(self.arequest(method, url, **kw))
-        # The browser tests' session-wide Playwright keeps an event loop running in the
-        # main thread once started; a worker thread has none, so any order works.
-        from concurrent.futures import ThreadPoolExecutor
-        with ThreadPoolExecutor(max_workers=1) as pool:
-            return pool.submit(lambda: asyncio.run(self.arequest(method, url, **kw))).result()
+        return run_async(self.arequest(method, url, **kw))
 
     def get(self, url: str, **kw) -> httpx.Response:
         return self.request("GET", url, **kw)

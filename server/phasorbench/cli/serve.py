@@ -117,8 +117,9 @@ def serve_main(args) -> int:
         print(f"phasorbench serve: {exc}", file=sys.stderr)
         return 2
     url = page_url(args.host, args.port)
+    from ..web.serving import timed_protocol
     config = uvicorn.Config(app, host=args.host, port=args.port, log_level="warning",
-                            access_log=False)
+                            access_log=False, http=timed_protocol(settings))
     server = uvicorn.Server(config)
 
     def announce():

@@ -8,8 +8,6 @@ worker thread) and the mapping of failures to HTTP codes is here, once:
 
 from __future__ import annotations
 
-import asyncio
-import functools
 import logging
 import re
 from typing import Annotated, Literal
@@ -20,7 +18,7 @@ from pydantic import AfterValidator, BaseModel, Field
 from pydantic_core import PydanticCustomError
 
 from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
-from . import answers
+from . import answers, jobs
 from .jsonsafe import StrictJSONResponse
 from .samples import list_samples
 from ..presentation.rows import MAX_WINDOW, ROW_WINDOW
@@ -152,25 +150,56 @@ def error_response(status: int, message: str, hint: str = "") -> StrictJSONRespo
                               status_code=status)
 
 
-async def run_job(request: Request, job, *args, respond=StrictJSONResponse):
-    """Run ``job(*args, settings)`` in the solve pool and map its outcome to a response
-    (``respond(answer)``: JSON unless the route says otherwise)."""
+BUSY_HINT = "try again in a few seconds; the server is working through other requests"
+
+
+def busy_response(full: jobs.LaneFull) -> StrictJSONResponse:
+    """503 with Retry-After: the lane's queue is full (``jobs.LaneFull``)."""
+    response = error_response(503, "the server is busy: too many requests are waiting for "
+                                   "a worker", BUSY_HINT)
+    response.headers["Retry-After"] = str(full.retry_after)
+    return response
+
+
+async def run_guarded(request: Request, job, *args, heavy: bool = False,
+                      text: str | None = None):
+    """Run ``job(*args)`` in its lane (see ``jobs.py``) and map its failures once.
+
+    Returns ``(answer, None)`` or ``(None, error response)``: ``CircuitError`` and
+    numbers past the float range → 422, a full lane → 503 with Retry-After, a client
+    that has gone → an empty 499 nobody reads, anything else → 500 (traceback logged).
+    """
     state = request.app.state
-    loop = asyncio.get_running_loop()
+    runner = state.jobs
+    if text is None and args and isinstance(args[0], str):
+        text = args[0]                  # the circuit text: its length picks the lane
     try:
-        answer = await loop.run_in_executor(
-            state.solve_pool, functools.partial(job, *args, state.settings))
+        answer = await runner.run(request.receive, runner.lane_for(text, heavy), job, *args)
     except CircuitError as exc:
-        return StrictJSONResponse(answers.diagnostics_answer(exc.diagnostics), status_code=422)
+        return None, StrictJSONResponse(answers.diagnostics_answer(exc.diagnostics),
+                                        status_code=422)
     except NUMERIC_RANGE_ERRORS as exc:
         log.warning("request %s %s: numbers out of range", request.method, request.url.path,
                     exc_info=exc)
-        return StrictJSONResponse(answers.diagnostics_answer(out_of_range(exc).diagnostics),
-                                  status_code=422)
+        return None, StrictJSONResponse(answers.diagnostics_answer(out_of_range(exc).diagnostics),
+                                        status_code=422)
+    except jobs.LaneFull as full:
+        return None, busy_response(full)
+    except jobs.ClientGone:
+        return None, Response(status_code=499)
     except Exception:
         log.exception("request %s %s failed", request.method, request.url.path)
-        return error_response(500, INTERNAL_ERROR)
-    return respond(answer)
+        return None, error_response(500, INTERNAL_ERROR)
+    return answer, None
+
+
+async def run_job(request: Request, job, *args, heavy: bool = False,
+                  respond=StrictJSONResponse):
+    """Run ``job(*args, settings)`` in its lane and answer ``respond(answer)`` (strict
+    JSON unless the route says otherwise)."""
+    answer, failed = await run_guarded(request, job, *args, request.app.state.settings,
+                                       heavy=heavy)
+    return failed if failed is not None else respond(answer)
 
 
 async def check(body: CircuitBody, request: Request):

@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import contextlib
 import logging
-from concurrent.futures import ThreadPoolExecutor
 
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
@@ -22,6 +21,8 @@ from .. import __version__
 from ..blas import pin_loaded
 from . import api, pages, sheet_routes, study_routes, tolerance_routes
 from .guards import HostOriginGuard
+from .jobs import JobRunner
+from .serving import SecurityHeaders
 from starlette.exceptions import HTTPException as StarletteHTTPException
 from .jsonsafe import StrictJSONResponse
 from .settings import Settings
@@ -112,10 +113,15 @@ async def _internal_error(request: Request, exc: Exception):
     return api.error_response(500, api.INTERNAL_ERROR)
 
 
-def _load_core() -> None:
-    """Import the solve path now, so the first request does not wait for it."""
+def _preload() -> None:
+    """Import the solve path now, so the first request does not wait for it, and the
+    modules jobs import lazily: a job cancelled in the middle of a first import would
+    leave the next request to import them again."""
     from .. import accuracy, checks, results, solver, superposition  # noqa: F401
     from ..language import parser  # noqa: F401
+    from ..sheet import render_context  # noqa: F401
+    from ..studies import sweep  # noqa: F401
+    from ..tools import correct_power_factor  # noqa: F401
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:
@@ -129,14 +135,13 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         if not folder.is_dir():
             raise RuntimeError(f"phasorbench web: folder not found: {folder}")
     pin_loaded()             # one BLAS thread per solve worker (see blas.py)
-    _load_core()
-    pool = ThreadPoolExecutor(max_workers=settings.solve_workers,
-                              thread_name_prefix="phasorbench-solve")
+    runner = JobRunner(settings)
+    _preload()
 
     @contextlib.asynccontextmanager
     async def lifespan(app):
         yield
-        pool.shutdown(wait=False, cancel_futures=True)
+        runner.shutdown()
 
     app = FastAPI(
         title="phasorbench", version=__version__,
@@ -149,7 +154,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
                             Exception: _internal_error},
     )
     app.state.settings = settings
-    app.state.solve_pool = pool
+    app.state.jobs = runner
     app.state.templates = Jinja2Templates(directory=str(settings.templates_dir))
     app.add_middleware(HostOriginGuard, settings=settings)
+    app.add_middleware(SecurityHeaders)         # outermost: the guards' refusals get them too
     return app

@@ -4,13 +4,15 @@ A local server is still reachable by any web page the user opens: a page on anot
 site can post to ``127.0.0.1`` (cross-site request) or rebind its own name to
 ``127.0.0.1`` (DNS rebinding). So the server answers only requests addressed to its
 own loopback names (400 otherwise), refuses state-changing requests sent by a page of
-another origin (403), and never reads a body larger than its limit (413).
+another origin (403), never reads a body larger than its limit (413) and waits for a
+body at most ``body_timeout_s`` (408).
 
 It is plain ASGI middleware so it runs before routing and before any body is parsed.
 """
 
 from __future__ import annotations
 
+import asyncio
 import json
 import math
 from urllib.parse import urlsplit
@@ -110,7 +112,15 @@ class HostOriginGuard:
                                          or int(declared) > self.settings.max_body_bytes):
                 await _refuse_too_large(send, self.settings.max_body_bytes)
                 return
-            body = await _read_body(receive, self.settings.max_body_bytes)
+            try:
+                body = await asyncio.wait_for(
+                    _read_body(receive, self.settings.max_body_bytes),
+                    self.settings.body_timeout_s)
+            except asyncio.TimeoutError:
+                await _refuse(send, 408, "the request body did not arrive in time "
+                              f"({self.settings.body_timeout_s:g} s)", "send the whole "
+                              "body at once", close=True)
+                return
             if body is None:
                 await _refuse_too_large(send, self.settings.max_body_bytes)
                 return
@@ -163,10 +173,14 @@ async def _refuse_too_large(send, limit: int) -> None:
                   "raises it too), or split the circuit")
 
 
-async def _refuse(send, status: int, message: str, hint: str) -> None:
-    body = json.dumps({"errors": [{"line": None, "column": None,
-                                   "message": message, "hint": hint}]}).encode()
-    await send({"type": "http.response.start", "status": status,
-                "headers": [(b"content-type", b"application/json"),
-                            (b"content-length", str(len(body)).encode())]})
+async def _refuse(send, status: int, message: str, hint: str, close: bool = False) -> None:
+    """The API's error shape (``api.error_item``'s fields), sent before any route runs."""
+    body = json.dumps({"errors": [{"line": None, "column": None, "length": 1,
+                                   "severity": "error", "message": message, "hint": hint}],
+                       "warnings": []}).encode()
+    headers = [(b"content-type", b"application/json"),
+               (b"content-length", str(len(body)).encode())]
+    if close:
+        headers.append((b"connection", b"close"))
+    await send({"type": "http.response.start", "status": status, "headers": headers})
     await send({"type": "http.response.body", "body": body})

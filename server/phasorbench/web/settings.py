@@ -43,6 +43,24 @@ SOLVE_WORKERS = 4
 #: Seconds one formula request's symbolic work may take before its worker process is
 #: stopped (a symbolic solve can grow without bound; the error says to keep fewer symbols).
 FORMULA_SECONDS = 10.0
+#: Worker threads of the small lane (circuit texts up to jobs.SMALL_TEXT_CHARS): a
+#: hand-sized circuit is answered in milliseconds even while the large lane is full.
+SMALL_WORKERS = 2
+#: Jobs that may wait for a large-lane worker beyond those running. Sixteen mid-size
+#: solves (about a second each) drain in a few seconds on four workers, well inside the
+#: page's request timeout; one more is answered 503 at once instead of waiting longer.
+LARGE_QUEUE = 16
+#: Jobs that may wait in the small lane (each takes milliseconds).
+SMALL_QUEUE = 64
+#: Seconds a 503 asks the client to wait before trying again (Retry-After).
+RETRY_AFTER_S = 2
+#: Seconds a client has to send a request head (line and headers), from the moment it
+#: connects or got its last answer: a browser sends it in one packet; a client that
+#: trickles it a byte at a time only holds a connection open.
+HEADER_TIMEOUT_S = 10.0
+#: Seconds a client has to send a whole body once the head arrived: 2 MB on loopback
+#: takes milliseconds; a body that stalls is answered 408 and its connection closed.
+BODY_TIMEOUT_S = 30.0
 #: Names under which the server is always reachable from this machine itself.
 LOOPBACK_NAMES = ("127.0.0.1", "localhost", "::1")
 #: Bind addresses that mean "every interface" (then the Host check needs names given
@@ -87,6 +105,12 @@ class Settings:
     max_view_elements: int = MAX_VIEW_ELEMENTS
     solve_workers: int = SOLVE_WORKERS
     formula_seconds: float = FORMULA_SECONDS
+    small_workers: int = SMALL_WORKERS
+    large_queue: int = LARGE_QUEUE
+    small_queue: int = SMALL_QUEUE
+    retry_after_s: int = RETRY_AFTER_S
+    header_timeout_s: float = HEADER_TIMEOUT_S
+    body_timeout_s: float = BODY_TIMEOUT_S
     allowed_hosts: tuple[str, ...] = ()
     initial_sample: str | None = None
     #: A Dask scheduler's address for the tolerance study's chunks (None: in-process).
@@ -117,4 +141,6 @@ SETTINGS_HELP = {
     "solve_workers": f"worker threads for solving (default {SOLVE_WORKERS})",
     "scheduler": "address of a Dask scheduler that runs the tolerance studies' chunks "
                  "(the 'cluster' extra; default: none, in-process)",
+    "large_queue": f"large requests that may wait for a worker (default {LARGE_QUEUE}); "
+                   "more get 503 with Retry-After",
 }

@@ -8,18 +8,15 @@ with a generic message (the traceback goes to the server log only).
 
 from __future__ import annotations
 
-import asyncio
-import functools
 import logging
 
 from fastapi import APIRouter, Request
 from fastapi.responses import Response
 from pydantic import BaseModel, Field
 
-from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
-from . import answers
-from .api import INTERNAL_ERROR, CircuitBody, CorrectionAsk, PortAsk, Text, error_response
-from .jsonsafe import StrictJSONResponse
+from . import api, answers
+from .api import CircuitBody, CorrectionAsk, PortAsk, Text
+from .jsonsafe import utf8
 from .limits import check_size
 from .settings import Settings
 from .study_routes import FormulaAsk
@@ -104,25 +101,12 @@ async def sheet(body: SheetBody, request: Request):
     made from the circuit's title; 422 ``{"errors": [...], "warnings": [...]}`` when
     the circuit has errors (as ``/api/solve``).
     """
-    state = request.app.state
-    settings = getattr(state, "settings", None) or Settings()
-    loop = asyncio.get_running_loop()
-    try:
-        # The solve pool of the app when it has one (create_app makes it).
-        html, filename = await loop.run_in_executor(
-            getattr(state, "solve_pool", None),
-            functools.partial(sheet_answer, body, settings))
-    except CircuitError as exc:
-        return StrictJSONResponse(answers.diagnostics_answer(exc.diagnostics), status_code=422)
-    except NUMERIC_RANGE_ERRORS as exc:
-        log.warning("request %s %s: numbers out of range", request.method, request.url.path,
-                    exc_info=exc)
-        return StrictJSONResponse(answers.diagnostics_answer(out_of_range(exc).diagnostics),
-                                  status_code=422)
-    except Exception:
-        log.exception("request %s %s failed", request.method, request.url.path)
-        return error_response(500, INTERNAL_ERROR)
-    return Response(html, media_type="text/html; charset=utf-8", headers={
+    answer, failed = await api.run_guarded(request, sheet_answer, body,
+                                           request.app.state.settings, text=body.netlist)
+    if failed is not None:
+        return failed
+    html, filename = answer
+    return Response(utf8(html), media_type="text/html; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="{filename}"',
         "X-Content-Type-Options": "nosniff",
         "Cache-Control": "no-store",

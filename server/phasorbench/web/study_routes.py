@@ -151,13 +151,14 @@ def csv_answer(text: str, ask: dict, settings: Settings) -> str:
 async def sweep(body: SweepBody, request: Request):
     """Frequency response of probes: ``frequencies_hz``, ``probes`` (re, im, mag, deg per
     point, null where undefined), ``resonances``, ``warnings``; 422 for bad input."""
-    return await api.run_job(request, drawn_sweep_answer, body.netlist, body.ask())
+    # A sweep is many solves: it runs in the large lane whatever the circuit's size.
+    return await api.run_job(request, drawn_sweep_answer, body.netlist, body.ask(), heavy=True)
 
 
 async def sweep_csv(body: SweepBody, request: Request):
     """The same sweep as ``text/csv`` (one row per frequency: magnitude, angle, re and im
     of every probe), as an attachment; 422 in the JSON error shape for bad input."""
-    return await api.run_job(request, csv_answer, body.netlist, body.ask(),
+    return await api.run_job(request, csv_answer, body.netlist, body.ask(), heavy=True,
                              respond=_csv_response)
 
 
