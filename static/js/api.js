@@ -1,29 +1,42 @@
 // The JSON API of the local server: one function per route.
 
-const NO_ANSWER = {
-  errors: [{line: null, column: null, message: "the server did not answer",
-            hint: "is `phasorbench serve` still running?"}],
-  warnings: [],
-};
+/** How long the page waits for one answer before saying the server is not answering
+ * (the server's `page_timeout_s`, handed over on the page's body). */
+export const REQUEST_TIMEOUT_MS = Number(document.body.dataset.requestTimeoutMs) || 60_000;
+
+/** The API's error shape for "no answer": `timedOut` when the time above ran out. */
+export function noAnswer(timedOut) {
+  const message = timedOut
+    ? `the server did not answer within ${Math.round(REQUEST_TIMEOUT_MS / 1000)} s`
+    : "the server cannot be reached";
+  return {errors: [{line: null, column: null, message,
+                    hint: "is `phasorbench serve` still running? The circuit stays in the editor as typed"}],
+          warnings: []};
+}
+
+/** A signal that aborts on the caller's `signal` or when the request timeout passes. */
+export function withTimeout(signal) {
+  const timer = AbortSignal.timeout(REQUEST_TIMEOUT_MS);
+  return {timer, signal: signal ? AbortSignal.any([signal, timer]) : timer};
+}
 
 async function postJSON(path, body, signal) {
-  let response;
+  const limit = withTimeout(signal);
+  let response, data;
   try {
     response = await fetch(path, {
       method: "POST",
       headers: {"Content-Type": "application/json", "Accept": "application/json"},
       body: JSON.stringify(body),
-      signal,
+      signal: limit.signal,
+    });
+    data = await response.json().catch((err) => {
+      if (limit.signal.aborted) throw err;
+      return {errors: [{line: null, column: null, message: `the server answered ${response.status} without JSON`, hint: ""}], warnings: []};
     });
   } catch (err) {
-    if (err.name === "AbortError") throw err;
-    return {ok: false, status: 0, data: NO_ANSWER};
-  }
-  let data;
-  try {
-    data = await response.json();
-  } catch {
-    data = {errors: [{line: null, column: null, message: `the server answered ${response.status} without JSON`, hint: ""}], warnings: []};
+    if (signal && signal.aborted) throw err;       // the page's own abort (a newer edit)
+    return {ok: false, status: 0, data: noAnswer(limit.timer.aborted)};
   }
   return {ok: response.ok, status: response.status, data};
 }

@@ -22,7 +22,7 @@ function placeOptions(source) {
 
 const nodeLabel = (n) => (n === "0" ? "0 (ground)" : n);
 
-export function createCorrection({getSolved, onAppend}) {
+export function createCorrection({getSolved, onAppend, whyNotSolved}) {
   const form = $("pfc-form");
   const out = $("pfc-out");
   const boxes = [$("pfc-node1"), $("pfc-node2"), $("pfc-node3")];
@@ -130,7 +130,8 @@ export function createCorrection({getSolved, onAppend}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
+        : "The circuit does not solve: fix it first (see the problems under the editor)."));
       return;
     }
     const asked = request();

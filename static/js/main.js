@@ -36,6 +36,7 @@ const state = {
   solvedText: "",        // the text that answer belongs to
   seq: {check: 0, solve: 0, views: 0},
   aborts: {},
+  failure: null,         // why the last solve did not succeed: {server: bool, text}
 };
 
 let editor;
@@ -102,10 +103,32 @@ async function runCheck() {
     const {status, data} = await postCheck(text, signal);
     if (seq !== state.seq.check) return;
     if (status === 200 || status === 422) showDiagnostics(data.errors || [], data.warnings || []);
+    else if (serverFault(status)) showServerSilent(data);
     else showBanner(problemText(data), "error");
   } catch (err) { ignoreAbort(err); }
 }
 const scheduleCheck = debounce(runCheck, CHECK_DELAY_MS);
+
+/** The server did not answer (status 0), was busy (503) or failed (5xx): not the circuit. */
+function serverFault(status) {
+  return status === 0 || status >= 500;
+}
+
+/** Say, where the check's state shows, that nothing is known of the text right now. */
+function showServerSilent(data) {
+  const node = $("check-state");
+  node.className = "check-state bad";
+  node.textContent = "? not checked: the server is not answering";
+  showBanner(`The server is not answering: ${problemText(data)}.`, "error");
+}
+
+/** Why the tools and Export have no solved circuit: the circuit, or the server. */
+function whyNotSolved() {
+  if (state.failure && state.failure.server) {
+    return `No answer from the server (${state.failure.text}): nothing was solved; the circuit is kept in the editor.`;
+  }
+  return "The circuit does not solve: fix it first (see the problems under the editor).";
+}
 
 function problemText(data) {
   const first = (data && data.errors && data.errors[0]) || {message: "unknown problem"};
@@ -144,6 +167,7 @@ async function solve() {
   try {
     const {ok, status, data} = await postSolve(text, signal);
     if (seq !== state.seq.solve) return;
+    state.failure = ok ? null : {server: serverFault(status), text: problemText(data)};
     if (ok) {
       state.answer = data;
       state.solvedText = text;
@@ -159,6 +183,9 @@ async function solve() {
       $("results").classList.toggle("stale", Boolean(state.answer));
       showBanner(`Not solved: ${problemText(data)}` +
         (state.answer ? " — the results below are from the last circuit that solved." : ""), "error");
+    } else if (serverFault(status)) {
+      $("results").classList.toggle("stale", Boolean(state.answer));
+      showServerSilent(data);
     } else {
       showBanner(`Not solved: ${problemText(data)}`, "error");
     }
@@ -432,8 +459,8 @@ function setupTools() {
   const threePhase = createThreePhase({onSelect: (name) => select(name, {focus: false})});
   tools = {
     threePhase,
-    correction: createCorrection({getSolved: solvedText, onAppend: appendLines}),
-    port: createPort({getSolved: solvedText}),
+    correction: createCorrection({getSolved: solvedText, onAppend: appendLines, whyNotSolved}),
+    port: createPort({getSolved: solvedText, whyNotSolved}),
     tolerance: createTolerance({getSolved: solvedText}),
     sweep: createSweep({getSolved: solvedText}),
     formula: createFormula({getSolved: solvedText}),
@@ -456,7 +483,8 @@ async function exportCurrentSheet() {
   try {
     const text = await solvedText();
     if (text === null) {
-      showBanner("The circuit does not solve: fix it before exporting the sheet.", "error");
+      showBanner(state.failure && state.failure.server ? whyNotSolved()
+        : "The circuit does not solve: fix it before exporting the sheet.", "error");
       return;
     }
     // The sheet `phasorbench sheet FILE` writes: its default diagrams unless the person
@@ -473,8 +501,12 @@ async function exportCurrentSheet() {
     });
     if (!result.ok) {
       const data = result.data || {};
-      showDiagnostics(data.errors || [], data.warnings || []);
-      showBanner(`No sheet: ${problemText(data)}`, "error");
+      if (serverFault(result.status)) {
+        showBanner(`No sheet: the server is not answering (${problemText(data)}).`, "error");
+      } else {
+        showDiagnostics(data.errors || [], data.warnings || []);
+        showBanner(`No sheet: ${problemText(data)}`, "error");
+      }
     }
   } finally {
     button.disabled = false;

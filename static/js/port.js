@@ -7,7 +7,7 @@ import {factList, fill, fillSelect, problemList, savedTool, saveTool} from "./to
 
 const $ = (id) => document.getElementById(id);
 
-export function createPort({getSolved}) {
+export function createPort({getSolved, whyNotSolved}) {
   const form = $("port-form");
   const out = $("port-out");
   let seq = 0;
@@ -37,7 +37,8 @@ export function createPort({getSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
+        : "The circuit does not solve: fix it first (see the problems under the editor)."));
       return;
     }
     const {ok, data} = await postPort(text, a, b);

@@ -3,6 +3,8 @@
 // The sheet is made on the server (POST /api/sheet) from the same data as the page,
 // so the file saved here is the one `phasorbench sheet FILE` writes.
 
+import {noAnswer, withTimeout} from "./api.js";
+
 const FALLBACK_NAME = "circuit-sheet.html";
 
 /** The file name of a Content-Disposition header, or the fallback. */
@@ -56,21 +58,21 @@ export async function exportSheet(netlist, elements, tools = {}) {
   if (tools.sweep) body.sweep = tools.sweep;
   if (tools.formula) body.formula = tools.formula;
   if (tools.harmonics) body.harmonics = tools.harmonics;
-  let response;
+  const limit = withTimeout();
+  let response, blob;
   try {
     response = await fetch("/api/sheet", {
       method: "POST",
       headers: {"Content-Type": "application/json", "Accept": "text/html"},
       body: JSON.stringify(body),
+      signal: limit.signal,
     });
+    if (!response.ok) return {ok: false, status: response.status, data: await errorsOf(response)};
+    blob = await response.blob();
   } catch {
-    return {ok: false, status: 0, data: {
-      errors: [{line: null, column: null, message: "the server did not answer",
-                hint: "is `phasorbench serve` still running?"}],
-      warnings: []}};
+    return {ok: false, status: 0, data: noAnswer(limit.timer.aborted)};
   }
-  if (!response.ok) return {ok: false, status: response.status, data: await errorsOf(response)};
   const filename = attachmentName(response.headers.get("Content-Disposition"));
-  saveBlob(await response.blob(), filename);
+  saveBlob(blob, filename);
   return {ok: true, filename};
 }

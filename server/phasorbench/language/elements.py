@@ -45,7 +45,7 @@ SIMPLE_ELEMENT = re.compile(
     r"[ \t]*([A-Za-z][A-Za-z0-9_]*)[ \t]*:[ \t]*"
     r"(resistor|capacitor|inductor|impedance|admittance|voltage|current)[ \t]+"
     r"([A-Za-z0-9_.]+)[ \t]*->[ \t]*([A-Za-z0-9_.]+)[ \t]+"
-    r"(-?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)[ \t]*([A-Za-zµΩ]*)[ \t]*(?:#.*)?")
+    r"(-?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)[ \t]*([A-Za-zµΩ]*)[ \t]*(?:#.*)?")
 
 
 def _canonical_node(text: str) -> str:

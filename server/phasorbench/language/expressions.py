@@ -88,9 +88,15 @@ LOOKALIKES = {"−": "-", "–": "-", "—": "-", "‐": "-", "º": "°", "˚": 
 
 def spelling_hint(word: str) -> str | None:
     """'did you mean …' for a look-alike character or a unit written in the wrong case."""
+    from .lookalikes import foreign_digits_hint, name_hint
+    foreign = foreign_digits_hint(word)
+    if foreign:
+        return foreign
     for char, meant in LOOKALIKES.items():
         if char in word:
             return f"'{char}' only looks like '{meant}': type the plain '{meant}'"
+    if not word.isascii() and (letters := name_hint(word)):
+        return letters
     lowered = {k.lower(): k for k in UNITS}
     for p in PREFIXES:                 # m before M: 'mh' most likely means mH
         for u in UNITS:

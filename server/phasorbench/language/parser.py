@@ -17,6 +17,7 @@ from ..model import Circuit
 from .elements import SIMPLE_ELEMENT, ElementReader, read_tolerance
 from .expressions import LanguageError, Quantity, TokenStream
 from .lexer import Token, tokenize
+from .lookalikes import foreign_digits_hint, name_hint, node_warnings
 from .suggest import NameIndex
 from .values import expect_unit, parse_value
 
@@ -152,6 +153,10 @@ class CircuitParser:
         lines = []
         simple = SIMPLE_ELEMENT.fullmatch
         for number, raw in enumerate(source_lines(self.text), start=1):
+            if number == 1 and raw.startswith("\ufeff"):
+                # A byte-order mark opens many files saved on Windows: read as a space
+                # (columns stay those of the text as given), as the command line does.
+                raw = " " + raw[1:]
             match = simple(raw)
             if match is not None:
                 # The common shape 'NAME: KIND p -> n NUMBER[UNIT]' skips the tokenizer;
@@ -218,6 +223,7 @@ class CircuitParser:
         name = token.text
         if not NAME_PATTERN.fullmatch(name):
             self.error(line.number, f"'{name}' is not a valid name",
+                       name_hint(name) or foreign_digits_hint(name) or
                        "a name is letters, digits and _, starting with a letter",
                        token.start, token.end)
             return False
@@ -337,6 +343,7 @@ class CircuitParser:
                     self.recording.pop()
         reader.finish()
         self.file_checks(circuit, reader)
+        self.lookalike_nodes(circuit)
         circuit.values = {k: q.value for k, q in self.values.items()}
         circuit.value_tolerances = {k: v for k, v in self.value_tolerances.items()
                                     if v[0] > 0}
@@ -373,6 +380,23 @@ class CircuitParser:
                 found[name].extend(m for m in members
                                    if m in circuit.elements or m in circuit.couplings)
         return {name: tuple(users) for name, users in found.items()}
+
+    def lookalike_nodes(self, circuit: Circuit) -> None:
+        """Warn of node names with letters that pass for Latin ones (``lookalikes.py``)."""
+        odd = {}
+        for element in circuit.elements.values():
+            for node in element.nodes:
+                if not node.isascii() and node not in odd:
+                    odd[node] = element.line
+        if not odd:
+            return
+        lines = source_lines(self.text)
+        nodes_at = {n: (line, lines[line - 1] if line and line <= len(lines) else "")
+                    for n, line in odd.items()}
+        for element in circuit.elements.values():
+            for node in element.nodes:
+                nodes_at.setdefault(node, (None, ""))
+        self.diagnostics.extend(node_warnings(nodes_at))
 
     def empty(self) -> Circuit:
         return Circuit(title=self.title, frequency=self.frequency or 0.0,

@@ -40,6 +40,7 @@ async def workbench(request: Request):
         "max_body_bytes": settings.max_body_bytes,
         "max_elements": settings.max_elements,
         "max_view_elements": settings.max_view_elements,
+        "request_timeout_ms": int(settings.page_timeout_s * 1000),
     }
     return _templates(request).TemplateResponse(request, "workbench.html", context,
                                                 headers=PAGE_HEADERS)

@@ -61,6 +61,10 @@ HEADER_TIMEOUT_S = 10.0
 #: Seconds a client has to send a whole body once the head arrived: 2 MB on loopback
 #: takes milliseconds; a body that stalls is answered 408 and its connection closed.
 BODY_TIMEOUT_S = 30.0
+#: Seconds the page waits for one answer before it says the server is not answering
+#: (and re-enables Solve): a 5,000-element solve takes seconds, a full queue ahead of it
+#: a few times that; a minute without an answer is a frozen or stopped server.
+PAGE_TIMEOUT_S = 60.0
 #: Names under which the server is always reachable from this machine itself.
 LOOPBACK_NAMES = ("127.0.0.1", "localhost", "::1")
 #: Bind addresses that mean "every interface" (then the Host check needs names given
@@ -111,6 +115,7 @@ class Settings:
     retry_after_s: int = RETRY_AFTER_S
     header_timeout_s: float = HEADER_TIMEOUT_S
     body_timeout_s: float = BODY_TIMEOUT_S
+    page_timeout_s: float = PAGE_TIMEOUT_S
     allowed_hosts: tuple[str, ...] = ()
     initial_sample: str | None = None
     #: A Dask scheduler's address for the tolerance study's chunks (None: in-process).
