@@ -49,6 +49,12 @@ def _no_lone_surrogates(value: str) -> str:
         {"code": f"{ord(found.group()):04X}", "line": line, "column": column})
 
 
+def _not_empty(value: str) -> str:
+    if not value:
+        raise PydanticCustomError("string_too_short", "String should have at least 1 character")
+    return value
+
+
 #: Every text field of a request: any Unicode character, but no lone surrogate.
 Text = Annotated[str, AfterValidator(_no_lone_surrogates)]
 
@@ -56,7 +62,51 @@ Text = Annotated[str, AfterValidator(_no_lone_surrogates)]
 class CircuitBody(BaseModel):
     """A circuit text in the project's circuit language."""
 
-    netlist: Text = Field(description="the circuit text, as typed in the editor or kept in a .circuit file")
+    # minLength is said in the schema and checked by the validator below: pydantic's own
+    # length check reads the text as UTF-8 first and would hide a surrogate's place.
+    netlist: Annotated[Text, AfterValidator(_not_empty)] = Field(
+        json_schema_extra={"minLength": 1},
+        description="the circuit text, as typed in the editor or kept in a .circuit file "
+                    "(any Unicode but lone surrogates; at most the server's body limit in "
+                    "UTF-8 bytes and its element limit). A text the language cannot read "
+                    "is answered 422 with every error at its line and column")
+
+
+class ErrorItem(BaseModel):
+    """One problem: where it is (line and column from 1, null for none) and its hint."""
+
+    line: int | None
+    column: int | None
+    length: int = Field(description="width of the caret span, in characters")
+    severity: Literal["error", "warning"]
+    message: str
+    hint: str
+
+
+class ErrorAnswer(BaseModel):
+    """Every refusal and every circuit with errors is answered in this one shape."""
+
+    errors: list[ErrorItem]
+    warnings: list[ErrorItem]
+
+
+def _refusal(description: str, **extra) -> dict:
+    return {"model": ErrorAnswer, "description": description, **extra}
+
+
+#: Every status a POST route may answer besides 200, listed in its OpenAPI entry.
+ERROR_RESPONSES = {
+    400: _refusal("the Host header names another server (a guard against DNS rebinding)"),
+    403: _refusal("sent by a page of another origin (Origin or Sec-Fetch-Site)"),
+    408: _refusal("the body did not arrive within the server's body timeout"),
+    413: _refusal("the body is larger than the server's body limit"),
+    422: _refusal("the circuit has errors, or the body is not what this route takes: each "
+                  "problem with its line, column and hint"),
+    500: _refusal("an internal error: the details are in the server's log only"),
+    503: _refusal("too many requests are waiting for a worker: retry after the seconds "
+                  "in Retry-After", headers={"Retry-After": {
+                      "description": "seconds to wait", "schema": {"type": "integer"}}}),
+}
 
 
 class SolveBody(CircuitBody):
@@ -205,8 +255,9 @@ async def run_job(request: Request, job, *args, heavy: bool = False,
 async def check(body: CircuitBody, request: Request):
     """Errors and warnings of a circuit, without solving (for live checking as one types).
 
-    Always 200: ``{"errors": [...], "warnings": [...]}``, each item ``{"line", "column",
-    "length", "severity", "message", "hint"}``.
+    200 ``{"errors": [...], "warnings": [...]}`` for any text, each item ``{"line",
+    "column", "length", "severity", "message", "hint"}``; 422 only for a body that is not
+    ``{"netlist": TEXT}`` (or holds a lone surrogate).
     """
     return await run_job(request, answers.check_answer, body.netlist)
 

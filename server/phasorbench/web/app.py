@@ -38,7 +38,7 @@ def _routes(settings: Settings) -> list:
 
     def post(path, endpoint, summary):
         return APIRoute(path, endpoint, methods=["POST"], summary=summary,
-                        response_class=StrictJSONResponse)
+                        response_class=StrictJSONResponse, responses=api.ERROR_RESPONSES)
 
     return [
         page("/", pages.workbench),

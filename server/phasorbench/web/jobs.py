@@ -102,14 +102,25 @@ class Lane:
         self.name, self.retry_after = name, retry_after
         self.capacity = workers + queue
         self.admitted = 0
-        self.pool = ThreadPoolExecutor(max_workers=workers,
-                                       thread_name_prefix=f"phasorbench-{name}")
+        self.workers = workers
+        self._pool: ThreadPoolExecutor | None = None
+
+    @property
+    def pool(self) -> ThreadPoolExecutor:
+        """The worker threads, started on first use (again after a shutdown: an app
+        served more than once, as test clients do, runs its lifespan each time)."""
+        if self._pool is None:
+            self._pool = ThreadPoolExecutor(max_workers=self.workers,
+                                            thread_name_prefix=f"phasorbench-{self.name}")
+        return self._pool
 
     def release(self) -> None:
         self.admitted -= 1
 
     def shutdown(self) -> None:
-        self.pool.shutdown(wait=False, cancel_futures=True)
+        pool, self._pool = self._pool, None
+        if pool is not None:
+            pool.shutdown(wait=False, cancel_futures=True)
 
 
 class JobRunner:

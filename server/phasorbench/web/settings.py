@@ -146,6 +146,4 @@ SETTINGS_HELP = {
     "solve_workers": f"worker threads for solving (default {SOLVE_WORKERS})",
     "scheduler": "address of a Dask scheduler that runs the tolerance studies' chunks "
                  "(the 'cluster' extra; default: none, in-process)",
-    "large_queue": f"large requests that may wait for a worker (default {LARGE_QUEUE}); "
-                   "more get 503 with Retry-After",
 }

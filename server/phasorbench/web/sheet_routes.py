@@ -91,9 +91,9 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
 
 @router.post("/api/sheet", summary="The solved sheet of a circuit (a self-contained HTML file)",
              response_class=Response,
-             responses={200: {"content": {"text/html": {}},
-                              "description": "the sheet, as an attachment"},
-                        422: {"description": "the circuit has errors: {\"errors\": [...]}"}})
+             responses={**api.ERROR_RESPONSES,
+                        200: {"content": {"text/html": {}},
+                              "description": "the sheet, as an attachment"}})
 async def sheet(body: SheetBody, request: Request):
     """The solved sheet: input with its SHA-256, tables, diagrams, checks and cautions.
 
