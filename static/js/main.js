@@ -103,7 +103,7 @@ async function runCheck() {
     const {status, data} = await postCheck(text, signal);
     if (seq !== state.seq.check) return;
     if (status === 200 || status === 422) showDiagnostics(data.errors || [], data.warnings || []);
-    else if (serverFault(status)) showServerSilent(data);
+    else if (serverFault(status)) showServerSilent(data, status);
     else showBanner(problemText(data), "error");
   } catch (err) { ignoreAbort(err); }
 }
@@ -115,11 +115,13 @@ function serverFault(status) {
 }
 
 /** Say, where the check's state shows, that nothing is known of the text right now. */
-function showServerSilent(data) {
+function showServerSilent(data, status) {
   const node = $("check-state");
   node.className = "check-state bad";
-  node.textContent = "? not checked: the server is not answering";
-  showBanner(`The server is not answering: ${problemText(data)}.`, "error");
+  const busy = status === 503;
+  node.textContent = busy ? "? not checked: the server is busy" : "? not checked: the server is not answering";
+  showBanner(busy ? `The server is busy: ${problemText(data)}.`
+                  : `The server is not answering: ${problemText(data)}.`, "error");
 }
 
 /** Why the tools and Export have no solved circuit: the circuit, or the server. */
@@ -185,7 +187,7 @@ async function solve() {
         (state.answer ? " — the results below are from the last circuit that solved." : ""), "error");
     } else if (serverFault(status)) {
       $("results").classList.toggle("stale", Boolean(state.answer));
-      showServerSilent(data);
+      showServerSilent(data, status);
     } else {
       showBanner(`Not solved: ${problemText(data)}`, "error");
     }

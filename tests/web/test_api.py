@@ -473,3 +473,15 @@ def test_extreme_finite_values_answer_200_or_422_on_every_route(api, value, plac
         assert r.status_code in (200, 422), (route, r.status_code, r.text[:200])
         if r.status_code == 422:
             assert strict_json(r)["errors"][0]["message"]
+
+
+def test_error_answers_stay_small_whatever_the_request(api):
+    # common practice, no source (issue 9, item 12: 300 KB of bad lines once gave a
+    # 21 MB answer): the answer is bounded by the listed diagnostics, not by the input
+    bad = "\n".join(f"bogus{i} " + "q" * 30 for i in range(8000))          # ~310 KB
+    for route in ("/api/check", "/api/solve"):
+        r = api.post(route, json={"netlist": bad})
+        assert r.status_code in (200, 422)
+        body = strict_json(r)
+        assert len(body["errors"]) <= 101 and "more like these" in body["errors"][-1]["message"]
+        assert len(r.content) < 64 * 1024, len(r.content)
