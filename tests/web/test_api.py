@@ -403,6 +403,7 @@ POST_BODIES = {
     "/api/correct": {"source": "V1", "target": 0.95},
     "/api/port": {"a": "a", "b": "0"},
     "/api/sweep": {"probes": ["V(a)"], "points": 5},
+    "/api/tolerance": {"probes": ["V(a)"], "runs": 10},
     "/api/sheet": {},
 }
 

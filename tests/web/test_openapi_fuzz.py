@@ -43,7 +43,7 @@ def test_every_post_route_lists_its_statuses_and_what_a_body_needs():
     # the statuses themselves per RFC 9110 section 15
     spec = APP.openapi()
     posts = {path: ops["post"] for path, ops in spec["paths"].items() if "post" in ops}
-    assert len(posts) == 9
+    assert len(posts) >= 11          # the nine of issue 9 and the tolerance study's two
     for path, op in posts.items():
         assert {"200", "400", "403", "408", "413", "422", "503"} <= set(op["responses"]), path
         assert "Retry-After" in op["responses"]["503"]["headers"], path

@@ -14,7 +14,7 @@ from typing import Annotated, Literal
 
 from fastapi import Request
 from fastapi.responses import Response
-from pydantic import AfterValidator, BaseModel, Field
+from pydantic import AfterValidator, BaseModel, ConfigDict, Field
 from pydantic_core import PydanticCustomError
 
 from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
@@ -59,8 +59,15 @@ def _not_empty(value: str) -> str:
 Text = Annotated[str, AfterValidator(_no_lone_surrogates)]
 
 
+#: Request bodies are read strictly: a value must have the type the schema gives it
+#: (``0`` is no boolean, ``"5"`` no number), so the schema says exactly what is taken.
+STRICT = ConfigDict(strict=True)
+
+
 class CircuitBody(BaseModel):
     """A circuit text in the project's circuit language."""
+
+    model_config = STRICT
 
     # minLength is said in the schema and checked by the validator below: pydantic's own
     # length check reads the text as UTF-8 first and would hide a surrogate's place.
@@ -160,6 +167,8 @@ class CorrectionAsk(BaseModel):
     """A power-factor correction to size: the fields of ``POST /api/correct`` after the
     circuit (the sheet asks for one in the same words)."""
 
+    model_config = STRICT
+
     source: Text = Field(description="an independent voltage or current source, or a voltage3 block")
     target: float = Field(description="target power factor in (0, 1], lagging unless leading")
     at: Text | list[Text] | None = Field(
@@ -177,6 +186,8 @@ class CorrectionAsk(BaseModel):
 
 class PortAsk(BaseModel):
     """The two nodes of a port: the fields of ``POST /api/port`` after the circuit."""
+
+    model_config = STRICT
 
     a: Text = Field(description="the port's first node")
     b: Text = Field(description="the port's second node (0 for ground)")

@@ -36,9 +36,14 @@ def _routes(settings: Settings) -> list:
         return APIRoute(path, endpoint, methods=["GET"], response_class=HTMLResponse,
                         include_in_schema=False)
 
-    def post(path, endpoint, summary):
+    def post(path, endpoint, summary, more=None):
         return APIRoute(path, endpoint, methods=["POST"], summary=summary,
-                        response_class=StrictJSONResponse, responses=api.ERROR_RESPONSES)
+                        response_class=StrictJSONResponse,
+                        responses={**api.ERROR_RESPONSES, **(more or {})})
+
+    busy_jobs = {429: {"model": api.ErrorAnswer,
+                       "description": "as many tolerance studies are running as the server takes"}}
+    no_job = {404: {"model": api.ErrorAnswer, "description": "no such study (or it expired)"}}
 
     return [
         page("/", pages.workbench),
@@ -62,13 +67,15 @@ def _routes(settings: Settings) -> list:
         post("/api/tolerance", tolerance_routes.tolerance,
              "Monte Carlo, sensitivities, worst case and yield over the tolerances"),
         post("/api/tolerance/jobs", tolerance_routes.start_job,
-             "Start a tolerance study (the page's progress and cancel)"),
+             "Start a tolerance study (the page's progress and cancel)", busy_jobs),
         APIRoute("/api/tolerance/jobs/{job_id}", tolerance_routes.job_status,
                  methods=["GET"], summary="Progress or answer of a tolerance study",
-                 response_class=StrictJSONResponse),
+                 response_class=StrictJSONResponse,
+                 responses={**api.ERROR_RESPONSES, **no_job}),
         APIRoute("/api/tolerance/jobs/{job_id}", tolerance_routes.cancel_job,
                  methods=["DELETE"], summary="Cancel a tolerance study",
-                 response_class=StrictJSONResponse),
+                 response_class=StrictJSONResponse,
+                 responses={**api.ERROR_RESPONSES, **no_job}),
         post("/api/formula", study_routes.formula,
              "A probe as an exact formula in s, with poles, zeros and balance conditions"),
         post("/api/harmonics", study_routes.harmonics,

@@ -34,12 +34,12 @@ KEEP_SECONDS = 600
 class ToleranceAsk(BaseModel):
     """What a tolerance study asks for (also the sheet's ``tolerance`` field)."""
 
-    probes: list[str] = Field(default_factory=list, description="probes: V(n), V(a, b), "
+    probes: list[api.Text] = Field(default_factory=list, description="probes: V(n), V(a, b), "
                               "I(E), Z(a, b), Z(n), X/Y")
     runs: int | None = Field(None, description="Monte Carlo runs (default 10,000)")
     seed: int | None = Field(None, description="seed of the draws (default 1)")
     worst_case: bool = Field(False, description="the worst case of |X| over the box")
-    limits: list[str] = Field(default_factory=list,
+    limits: list[api.Text] = Field(default_factory=list,
                               description='limits on magnitudes, e.g. "V(out) 0.95..1.05"')
 
 
@@ -102,7 +102,8 @@ async def tolerance(body: ToleranceBody, request: Request):
     """Monte Carlo over the tolerances: per probe the statistics and histograms of the
     magnitude and angle, ranked sensitivities, the worst case (``worst_case``), the yield
     inside ``limits``; ``runs``, ``seed``, ``warnings``; 422 for bad input."""
-    return await api.run_job(request, tolerance_answer, body.netlist, body.ask())
+    # A study is many solves: the large lane whatever the circuit's size.
+    return await api.run_job(request, tolerance_answer, body.netlist, body.ask(), heavy=True)
 
 
 def _jobs(request: Request) -> dict:
@@ -129,8 +130,9 @@ async def start_job(body: ToleranceBody, request: Request):
     def progress(done, total):
         job["done"], job["total"] = done, total
     state = request.app.state
-    # a thread-safe future of the pool itself: the job outlives this request's loop
-    job["future"] = state.solve_pool.submit(functools.partial(
+    # a thread-safe future of the large lane's pool itself: the job outlives this
+    # request (it is cancelled by DELETE, between chunks), bounded by MAX_JOBS
+    job["future"] = state.jobs.large.pool.submit(functools.partial(
         tolerance_answer, body.netlist, body.ask(), state.settings, progress,
         job["cancel"].is_set))
     key = secrets.token_hex(8)
