@@ -102,6 +102,7 @@ class Lane:
         self.name, self.retry_after = name, retry_after
         self.capacity = workers + queue
         self.admitted = 0
+        self._count = threading.Lock()
         self.workers = workers
         self._pool: ThreadPoolExecutor | None = None
 
@@ -114,8 +115,17 @@ class Lane:
                                             thread_name_prefix=f"phasorbench-{self.name}")
         return self._pool
 
+    def admit(self) -> bool:
+        with self._count:
+            if self.admitted >= self.capacity:
+                return False
+            self.admitted += 1
+            return True
+
     def release(self) -> None:
-        self.admitted -= 1
+        """Called from the worker thread as the job ends (the loop may be gone)."""
+        with self._count:
+            self.admitted -= 1
 
     def shutdown(self) -> None:
         pool, self._pool = self._pool, None
@@ -147,15 +157,13 @@ class JobRunner:
         ``receive`` is the request's ASGI receive, after its body was read: its next
         message is ``http.disconnect`` when the client goes.
         """
-        if lane.admitted >= lane.capacity:
+        if not lane.admit():
             raise LaneFull(lane.name, lane.retry_after)
-        loop = asyncio.get_running_loop()
         job = _Job(functools.partial(fn, *args))
-        lane.admitted += 1
         submitted = lane.pool.submit(job)
         # A job counts against its lane until its thread is free again, not until its
         # client has gone: a cancelled job still inside C code holds its worker.
-        submitted.add_done_callback(lambda _: loop.call_soon_threadsafe(lane.release))
+        submitted.add_done_callback(lambda _: lane.release())
         future = asyncio.wrap_future(submitted)
         gone = asyncio.ensure_future(_disconnected(receive))
         try:
