@@ -63,12 +63,13 @@ export const postHarmonics = (netlist, ask, signal) => postJSON("/api/harmonics"
 export const startToleranceJob = (netlist, ask) =>
   postJSON("/api/tolerance/jobs", {netlist, ...ask, display: true});
 export async function getToleranceJob(job) {
+  const limit = withTimeout();
   try {
     const response = await fetch(`/api/tolerance/jobs/${encodeURIComponent(job)}`,
-                                 {headers: {"Accept": "application/json"}});
+                                 {headers: {"Accept": "application/json"}, signal: limit.signal});
     return {ok: response.ok, status: response.status, data: await response.json()};
   } catch {
-    return {ok: false, status: 0, data: NO_ANSWER};
+    return {ok: false, status: 0, data: noAnswer(limit.timer.aborted)};
   }
 }
 export async function cancelToleranceJob(job) {

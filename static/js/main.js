@@ -463,7 +463,7 @@ function setupTools() {
     threePhase,
     correction: createCorrection({getSolved: solvedText, onAppend: appendLines, whyNotSolved}),
     port: createPort({getSolved: solvedText, whyNotSolved}),
-    tolerance: createTolerance({getSolved: solvedText}),
+    tolerance: createTolerance({getSolved: solvedText, whyNotSolved}),
     sweep: createSweep({getSolved: solvedText}),
     formula: createFormula({getSolved: solvedText}),
     harmonics: createHarmonics({getSolved: solvedText}),

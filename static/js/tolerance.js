@@ -19,7 +19,7 @@ function figure(svgText, className) {
   return box;
 }
 
-export function createTolerance({getSolved}) {
+export function createTolerance({getSolved, whyNotSolved}) {
   const form = $("tol-form");
   const out = $("tol-out");
   const bar = $("tol-progress");
@@ -82,7 +82,8 @@ export function createTolerance({getSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
+        : "The circuit does not solve: fix it first (see the problems under the editor)."));
       return;
     }
     busy(true);
