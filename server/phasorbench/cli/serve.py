@@ -12,7 +12,8 @@ import sys
 import threading
 
 from ..web.settings import (DEFAULT_HOST, DEFAULT_PORT, LOOPBACK_NAMES, MAX_ELEMENTS, SETTINGS_HELP,
-                            SOLVE_WORKERS, WILDCARD_HOSTS, Settings, body_limit)
+                            SOLVE_WORKERS, SWITCH_INTERVAL_S, WILDCARD_HOSTS, Settings,
+                            body_limit)
 
 __all__ = ["add_serve_arguments", "add_serve_command", "serve_main", "is_loopback", "page_url"]
 
@@ -120,6 +121,7 @@ def serve_main(args) -> int:
     from ..web.serving import timed_protocol
     config = uvicorn.Config(app, host=args.host, port=args.port, log_level="warning",
                             access_log=False, http=timed_protocol(settings))
+    sys.setswitchinterval(SWITCH_INTERVAL_S)      # the reason is beside the setting
     server = uvicorn.Server(config)
 
     def announce():

@@ -54,6 +54,11 @@ LARGE_QUEUE = 16
 SMALL_QUEUE = 64
 #: Seconds a 503 asks the client to wait before trying again (Retry-After).
 RETRY_AFTER_S = 2
+#: How often a Python thread hands over the interpreter lock (``sys.setswitchinterval``)
+#: while the server runs. The default 5 ms lets four busy solve threads keep the event
+#: loop and the small lane waiting 5 ms per step each: under 100 concurrent mid-size
+#: solves a one-resistor solve took 20 s; at 1 ms it took 3.8 s (benchmarks/bench_load.py).
+SWITCH_INTERVAL_S = 0.001
 #: Seconds a client has to send a request head (line and headers), from the moment it
 #: connects or got its last answer: a browser sends it in one packet; a client that
 #: trickles it a byte at a time only holds a connection open.
