@@ -85,17 +85,20 @@ export const postSweep = (netlist, ask, signal) => postJSON("/api/sweep", {netli
 
 /** The sweep as CSV: {ok: true, blob} or {ok: false, status, data: {errors, warnings}}. */
 export async function postSweepCsv(netlist, ask) {
-  let response;
+  const limit = withTimeout();
+  let response, blob;
   try {
     response = await fetch("/api/sweep/csv", {
       method: "POST",
       headers: {"Content-Type": "application/json", "Accept": "text/csv"},
       body: JSON.stringify({netlist, ...ask}),
+      signal: limit.signal,
     });
+    if (response.ok) blob = await response.blob();
   } catch {
-    return {ok: false, status: 0, data: NO_ANSWER};
+    return {ok: false, status: 0, data: noAnswer(limit.timer.aborted)};
   }
-  if (response.ok) return {ok: true, blob: await response.blob()};
+  if (response.ok) return {ok: true, blob};
   let data;
   try {
     data = await response.json();
