@@ -201,4 +201,5 @@ async def formula(body: FormulaBody, request: Request):
     against the numeric solve, ``display``; 422 for bad input or past the size or time
     limit (the error says which)."""
     ask = {"probe": body.probe, "keep": body.keep, "solve_for": body.solve_for}
-    return await api.run_job(request, formula_answer, body.netlist, ask)
+    # symbolic work may take seconds: the large lane, not the small one
+    return await api.run_job(request, formula_answer, body.netlist, ask, heavy=True)
