@@ -128,11 +128,11 @@ def test_a_full_lane_answers_503_with_retry_after(bench_samples, monkeypatch):
     release, started = threading.Event(), threading.Event()
     original = answers.solve_answer
 
-    def slow(text, settings):
+    def slow(text, *rest):
         if len(text) > jobs.SMALL_TEXT_CHARS:        # only the big request is held
             started.set()
             assert release.wait(SAFETY)
-        return original(text, settings)
+        return original(text, *rest)
     monkeypatch.setattr(answers, "solve_answer", slow)
     big = CAP_CIRCUIT + "#" * 5000              # past the small lane's size
 
@@ -158,7 +158,7 @@ def test_a_dropped_connection_stops_its_solve_on_a_live_server(bench_samples, mo
     # uvicorn passes it on as http.disconnect and the job is stopped
     started, ended, ran = threading.Event(), threading.Event(), []
     monkeypatch.setattr(answers, "solve_answer",
-                        lambda text, settings: busy_python(started, ended, ran))
+                        lambda text, *rest: busy_python(started, ended, ran))
     port = free_port()
     server = LiveServer(make_app(bench_samples, port=port), port).start()
     try:

@@ -29,10 +29,10 @@ def freezing_server(bench_samples, monkeypatch):
     solve, check = answers.solve_answer, answers.check_answer
 
     def hang_on_frozen(real):
-        def job(text, settings):
+        def job(text, *rest):
             while "freezes" in text and not release.is_set():
                 time.sleep(0.01)                 # Python-level: the job stays stoppable
-            return real(text, settings)
+            return real(text, *rest)
         return job
     monkeypatch.setattr(answers, "solve_answer", hang_on_frozen(solve))
     monkeypatch.setattr(answers, "check_answer", hang_on_frozen(check))
