@@ -242,7 +242,7 @@ def test_output_that_is_not_a_regular_file_is_refused(kind, words, rc_file, tmp_
 
 def test_a_device_node_is_refused_without_touching_it():
     # POSIX.1-2017, <sys/stat.h> S_ISCHR: /dev/null is a character device; only looked at
-    from phasorbench.cli.sheet import refusal
+    from phasorbench.cli.output import refusal
     assert "device" in refusal(os.devnull)
     assert refusal(os.devnull + "-not-there") is None
 

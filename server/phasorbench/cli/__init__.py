@@ -1,6 +1,7 @@
 """The ``phasorbench`` command line: one module per command family, one shared helper.
 
 - ``common.py``: reading the source (a file or ``-``), exit codes, diagnostics, JSON.
+- ``output.py``: where output goes (``-o``), quantity arguments (``2.5 kHz``).
 - ``circuit.py``: ``solve`` and ``check``; ``terminal.py`` draws their tables.
 - ``tools.py``: ``correct`` and ``port``.
 - ``sheet.py``: ``sheet``.

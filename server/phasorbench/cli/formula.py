@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 
 from ..errors import CircuitError
+from .output import write_output
 from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source
 from .sweep import _print_probe_diagnostics
 
@@ -40,11 +41,9 @@ def command_formula(args) -> int:
         _print_probe_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
     body = dump_json(result) + "\n" if args.json else summary_text(result)
-    if args.output:
-        with open(args.output, "w", encoding="utf-8", newline="") as handle:
-            handle.write(body)
-    else:
-        sys.stdout.write(body)
+    failed = write_output(args.output, body)
+    if failed is not None:
+        return failed
     for warning in result["warnings"]:
         print(f"{name}: warning: {warning}", file=sys.stderr)
     return EXIT_OK

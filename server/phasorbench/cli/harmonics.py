@@ -9,28 +9,13 @@ sheet's (``presentation/studies/harmonics.py``).
 from __future__ import annotations
 
 import argparse
-import re
 import sys
 import textwrap
 
 from .common import EXIT_OK, dump_json, load_source
+from .output import voltage_argument, write_output
 
 __all__ = ["add_harmonics_command", "command_harmonics", "voltage_argument"]
-
-_PREFIX = {"": 1.0, "m": 1e-3, "k": 1e3, "M": 1e6}
-_VOLTAGE = re.compile(r"\s*([0-9.]+(?:[eE][-+]?[0-9]+)?)\s*([kMm]?)(?:V)?\s*")
-
-
-def voltage_argument(text: str) -> float:
-    """``400``, ``4.16k``, ``13.8 kV``: a voltage in volts, a unit optional."""
-    match = _VOLTAGE.fullmatch(text)
-    if not match:
-        raise argparse.ArgumentTypeError(f"'{text}' is not a voltage (e.g. 400, 13.8 kV)")
-    try:
-        return float(match.group(1)) * _PREFIX[match.group(2)]
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"'{text}' is not a voltage") from None
-
 
 def add_harmonics_command(commands) -> None:
     study = commands.add_parser(
@@ -64,11 +49,9 @@ def command_harmonics(args) -> int:
     circuit = read_circuit(text, name)
     result = run_harmonics(circuit, args.pcc, args.nominal, rated, scan=args.scan)
     body = dump_json(result) + "\n" if args.json else summary(result)
-    if args.output:
-        with open(args.output, "w", encoding="utf-8", newline="") as handle:
-            handle.write(body)
-    else:
-        sys.stdout.write(body)
+    failed = write_output(args.output, body)
+    if failed is not None:
+        return failed
     for warning in result["warnings"]:
         print(f"{name}: warning: {warning}", file=sys.stderr)
     return EXIT_OK

@@ -9,14 +9,11 @@ written), 1 an internal failure. ``cli.py`` finds this module and registers it.
 from __future__ import annotations
 
 import argparse
-import os
-import stat
 import sys
-import tempfile
 
 from ..errors import CircuitError, Diagnostic
 from .common import EXIT_INPUT, EXIT_OK, load_source, print_warnings
-from .harmonics import voltage_argument
+from .output import voltage_argument, write_output
 
 
 __all__ = ["add_sheet_command", "command_sheet"]
@@ -83,58 +80,6 @@ def add_sheet_command(commands) -> None:
     sheet.set_defaults(run=command_sheet)
 
 
-class OutputRefused(Exception):
-    """The ``-o`` path holds something a sheet must not replace."""
-
-
-def refusal(path: str) -> str | None:
-    """Why ``path`` must not be replaced by a sheet, or None when it may be.
-
-    A sheet goes to a new file or replaces a regular file. Renaming over a FIFO, a
-    device node or a socket would swap a special file for a plain one (another
-    program's pipe, ``/dev/null``); over a symbolic link it would replace the link,
-    not the file it points to, so links are refused too rather than followed.
-    """
-    try:
-        info = os.lstat(path)
-    except FileNotFoundError:
-        return None
-    except OSError as exc:
-        return f"cannot look at it ({exc.strerror or exc})"
-    mode = info.st_mode
-    if stat.S_ISREG(mode):
-        return None
-    if stat.S_ISLNK(mode):
-        return ("is a symbolic link; a sheet replaces regular files only (give the path "
-                "of the file itself)")
-    if stat.S_ISDIR(mode):
-        return "is a folder; give a file name, e.g. OUT.html"
-    what = ("a FIFO (named pipe)" if stat.S_ISFIFO(mode) else
-            "a device" if stat.S_ISCHR(mode) or stat.S_ISBLK(mode) else
-            "a socket" if stat.S_ISSOCK(mode) else "not a regular file")
-    return f"is {what}; a sheet replaces regular files only (use -o - for standard output)"
-
-
-def _write(path: str, html: str) -> None:
-    """Write ``html`` to ``path`` whole or not at all (a temporary file, then a rename)."""
-    reason = refusal(path)
-    if reason is not None:
-        raise OutputRefused(reason)
-    folder = os.path.dirname(os.path.abspath(path))
-    handle, temporary = tempfile.mkstemp(prefix=".sheet-", suffix=".html", dir=folder)
-    try:
-        # mkstemp makes the file private; a sheet gets the mode any new file would.
-        mask = os.umask(0)
-        os.umask(mask)
-        os.chmod(temporary, 0o666 & ~mask)
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as out:
-            out.write(html)
-        os.replace(temporary, path)
-    except BaseException:
-        os.unlink(temporary)
-        raise
-
-
 def command_sheet(args) -> int:
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
@@ -190,19 +135,9 @@ def command_sheet(args) -> int:
                                         phasor_elements=args.elements, **tools,
                                         tolerance=tolerance, formula=formula,
                                         harmonics=harmonics))
-    if args.output == "-":
-        sys.stdout.write(html)
-        sys.stdout.flush()
-    else:
-        try:
-            _write(args.output, html)
-        except OutputRefused as exc:
-            print(f"{args.output}: error: not written: the path {exc}", file=sys.stderr)
-            return EXIT_INPUT
-        except OSError as exc:
-            print(f"{args.output}: error: cannot write the sheet ({exc.strerror or exc})",
-                  file=sys.stderr)
-            return EXIT_INPUT
+    failed = write_output(args.output, html, "sheet", prefix="sheet")
+    if failed is not None:
+        return failed
     # Warnings as ``solve`` prints them (the sheet lists them too).
     print_warnings(result["warnings"], name, text)
     return EXIT_OK

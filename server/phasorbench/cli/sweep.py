@@ -2,29 +2,14 @@
 
 from __future__ import annotations
 
-import argparse
 import re
 import sys
 
 from ..errors import CircuitError, Diagnostic
 from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_diagnostics
+from .output import frequency_argument, write_output
 
 __all__ = ["add_sweep_command", "command_sweep", "frequency_argument", "summary"]
-
-_PREFIX = {"": 1.0, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9}
-_FREQUENCY = re.compile(r"\s*([0-9.]+(?:[eE][-+]?[0-9]+)?)\s*([kMGm]?)(?:Hz)?\s*")
-
-
-def frequency_argument(text: str) -> float:
-    """``50``, ``2.5k``, ``2.5 kHz``: a frequency in Hz, a unit optional."""
-    match = _FREQUENCY.fullmatch(text)
-    if not match:
-        raise argparse.ArgumentTypeError(f"'{text}' is not a frequency (e.g. 50, 2.5 kHz)")
-    try:
-        return float(match.group(1)) * _PREFIX[match.group(2)]
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"'{text}' is not a frequency") from None
-
 
 def add_sweep_command(commands) -> None:
     sweep = commands.add_parser("sweep", help="frequency response of probes over a range")
@@ -62,11 +47,9 @@ def command_sweep(args) -> int:
         body = csv_text(result)
     else:
         body = summary(result)
-    if args.output:
-        with open(args.output, "w", encoding="utf-8", newline="") as handle:
-            handle.write(body)
-    else:
-        sys.stdout.write(body)
+    failed = write_output(args.output, body)
+    if failed is not None:
+        return failed
     for warning in result["warnings"]:
         print(f"{name}: warning: {warning}", file=sys.stderr)
     return EXIT_OK

@@ -7,6 +7,7 @@ import re
 import sys
 
 from ..errors import CircuitError, Diagnostic
+from .output import write_output
 from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_diagnostics
 
 __all__ = ["add_tolerance_command", "command_tolerance", "print_study_diagnostics"]
@@ -52,11 +53,9 @@ def command_tolerance(args) -> int:
         print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
     body = dump_json(result) + "\n" if args.json else summary(result)
-    if args.output:
-        with open(args.output, "w", encoding="utf-8", newline="") as handle:
-            handle.write(body)
-    else:
-        sys.stdout.write(body)
+    failed = write_output(args.output, body)
+    if failed is not None:
+        return failed
     for warning in result["warnings"]:
         print(f"{name}: warning: {warning}", file=sys.stderr)
     return EXIT_OK

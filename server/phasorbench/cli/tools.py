@@ -8,18 +8,18 @@ built from ``formatting.py`` only, so a number reads as it does on the page.
 
 from __future__ import annotations
 
-import re
+import argparse
 import sys
 import textwrap
 
 from .common import EXIT_OK, dump_json, load_source, print_warnings
+from .output import voltage_argument
 from ..errors import CircuitError, Diagnostic
 from ..presentation.formatting import eng, phasor, power_factor, rect
 
 __all__ = ["add_tool_commands"]
 
 _FILE_HELP = "a .circuit file, or - for standard input"
-_VOLTS = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?[0-9]+)?)\s*(k?)\s*V?\s*$")
 
 
 def _complex_power(supply: dict) -> str:
@@ -85,18 +85,14 @@ def correction_at(at: str | None, across) -> str | tuple | None:
 
 
 def rated_voltage(text: str | None) -> float | None:
-    """``--rated-voltage`` read as volts (``480``, ``0.48kV``)."""
-    return _rated_voltage(text)
-
-
-def _rated_voltage(text: str | None) -> float | None:
+    """``--rated-voltage`` read as volts (``480``, ``0.48kV``); None when not given."""
     if text is None:
         return None
-    match = _VOLTS.match(text)
-    if not match:
+    try:
+        return voltage_argument(text)
+    except argparse.ArgumentTypeError:
         raise _input_error(f"--rated-voltage '{text}' is not a voltage",
-                           "e.g. --rated-voltage 480 or 0.48kV")
-    return float(match.group(1)) * (1e3 if match.group(2) else 1.0)
+                           "e.g. --rated-voltage 480 or 0.48kV") from None
 
 
 def command_correct(args) -> int:
@@ -108,7 +104,7 @@ def command_correct(args) -> int:
     at = correction_at(args.at, args.across)
     result = correct_power_factor(circuit, args.source, args.target, at=at,
                                   leading=args.leading,
-                                  rated_voltage=_rated_voltage(args.rated_voltage),
+                                  rated_voltage=rated_voltage(args.rated_voltage),
                                   bank=args.bank, neutral=args.neutral)
     sys.stdout.write(dump_json(result) + "\n" if args.json else correction_text(result))
     print_warnings(result.get("warnings", []), name, text)
