@@ -13,7 +13,6 @@ import csv
 import io
 import math
 
-from .formatting import shown_digits
 
 __all__ = ["TABLES", "table_rows", "table_text"]
 
@@ -52,7 +51,7 @@ def _digits(trusted) -> int:
     """Digits to write: the trusted count, or every digit of a double when fully trusted."""
     if trusted is None or trusted >= _FULL:
         return _FULL
-    return shown_digits(trusted) if trusted < 4 else int(trusted)
+    return max(1, int(trusted))
 
 
 def table_rows(result: dict, table: str) -> tuple[list[str], list[list]]:
