@@ -70,7 +70,7 @@ function render(d) {
   return parts;
 }
 
-export function createFormula({getSolved}) {
+export function createFormula({getSolved, whyNotSolved}) {
   const form = $("formula-form");
   const out = $("formula-out");
   let seq = 0;
@@ -93,7 +93,8 @@ export function createFormula({getSolved}) {
       const text = await getSolved();
       if (mine !== seq) return;
       if (text === null) {
-        out.replaceChildren(el("p", {class: "placeholder"}, "The circuit does not solve: fix it first (see the problems under the editor)."));
+        out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
+        : "The circuit does not solve: fix it first (see the problems under the editor)."));
         return;
       }
       const {ok, data} = await postFormula(text, ask);

@@ -28,7 +28,7 @@ function pictures(items, cls) {
   }));
 }
 
-export function createHarmonics({getSolved}) {
+export function createHarmonics({getSolved, whyNotSolved}) {
   const form = $("hs-form");
   const out = $("hs-out");
   let seq = 0;
@@ -78,7 +78,8 @@ export function createHarmonics({getSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
+        : "The circuit does not solve: fix it first (see the problems under the editor)."));
       return;
     }
     const asked = ask();

@@ -464,9 +464,9 @@ function setupTools() {
     correction: createCorrection({getSolved: solvedText, onAppend: appendLines, whyNotSolved}),
     port: createPort({getSolved: solvedText, whyNotSolved}),
     tolerance: createTolerance({getSolved: solvedText, whyNotSolved}),
-    sweep: createSweep({getSolved: solvedText}),
-    formula: createFormula({getSolved: solvedText}),
-    harmonics: createHarmonics({getSolved: solvedText}),
+    sweep: createSweep({getSolved: solvedText, whyNotSolved}),
+    formula: createFormula({getSolved: solvedText, whyNotSolved}),
+    harmonics: createHarmonics({getSolved: solvedText, whyNotSolved}),
     tabs: createTabs($("tool-tabs"), {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),

@@ -13,7 +13,7 @@ const SVG_NS = "http://www.w3.org/2000/svg";
 // Probes offered as checkboxes at once; the filter box narrows a longer list.
 const LISTED = 60;
 
-export function createSweep({getSolved}) {
+export function createSweep({getSolved, whyNotSolved}) {
   const form = $("sweep-form");
   const out = $("sweep-out");
   const view = $("sweep-view");
@@ -101,7 +101,8 @@ export function createSweep({getSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      fill(out, el("p", {class: "placeholder"}, "The circuit does not solve: fix it first (see the problems under the editor)."));
+      fill(out, el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
+        : "The circuit does not solve: fix it first (see the problems under the editor)."));
       return;
     }
     const scale = savedTool("sweep").scale || "auto";

@@ -88,3 +88,40 @@ def test_export_with_the_server_down_blames_the_server(new_page, bench_samples, 
     # Chromium logs each refused connection as a console error: expected here, and only
     # those are let through (any other page error still fails the test)
     page_errors.errors[:] = [e for e in page_errors.errors if "ERR_CONNECTION_REFUSED" not in e]
+
+
+@pytest.mark.parametrize("tab, prepare, submit, out", [
+    ("sweep", "#sweep-custom=V(b)|#sweep-add", "#sweep-form button[type=submit]", "#sweep-out"),
+    ("harmonics", "", "#hs-form button[type=submit]", "#hs-out"),
+    ("formula", "#formula-probe=V(b)/V(a)", "#formula-run", "#formula-out"),
+])
+def test_study_tabs_with_the_server_down_blame_the_server(
+        tab, prepare, submit, out, new_page, bench_samples, page_errors):
+    # common practice, no source: a refused connection is the server's state; each study
+    # tab must say so rather than "the circuit does not solve"
+    port = free_port()
+    server = LiveServer(make_app(bench_samples, port=port, initial_sample="rc-bench",
+                                 page_timeout_s=5), port).start()
+    page = new_page()
+    try:
+        open_page(page, server)
+        page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=TIMEOUT_MS)
+    finally:
+        server.stop()
+    edited = BENCH_CIRCUIT + f"# edited after the server stopped ({tab})\n"
+    type_circuit(page, edited)
+    page.click(f"#tab-{tab}")
+    for step in filter(None, prepare.split("|")):
+        selector, _, value = step.partition("=")
+        if value:
+            page.fill(selector, value)
+        else:
+            page.click(selector)
+    page.click(submit)
+    page.wait_for_function(
+        f"() => document.querySelector('{out}').textContent.includes('server')",
+        timeout=TIMEOUT_MS)
+    said = page.inner_text(out)
+    assert "No answer from the server" in said and "does not solve" not in said
+    assert page.input_value("#editor-text") == edited
+    page_errors.errors[:] = [e for e in page_errors.errors if "ERR_CONNECTION_REFUSED" not in e]
