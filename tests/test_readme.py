@@ -55,3 +55,12 @@ def test_the_settings_table_names_exactly_the_serve_options():
     named = set(re.findall(r"\| `(--[a-z-]+)[^`]*` \|", table))
     assert named <= options, named - options
     assert options - {"--open", "--help"} <= named, options - {"--open", "--help"} - named
+
+
+def test_the_limits_table_states_the_server_defaults():
+    # common practice, no source: the README's limits are the code's numbers, not old ones
+    from phasorbench.web.settings import MAX_BODY_BYTES, MAX_ELEMENTS
+    start = README.index("### Limits")
+    table = README[start:README.index("\n\n", README.index("| limit", start))]
+    assert f"| {MAX_ELEMENTS:,} (`max_elements`" in table
+    assert f"| {MAX_BODY_BYTES / 2**20:.1f} MB (`max_body_bytes`" in table

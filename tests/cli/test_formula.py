@@ -52,3 +52,23 @@ def test_every_input_error_exits_2_with_the_probe_caret(tmp_path, capsys):
     assert "--probe:3: error:" in err and "  V(ot)\n    ^^" in err
     assert "--keep 'R9'" in err and "--solve-for 'Q'" in err
     assert "Traceback" not in err
+
+
+def test_time_limit_option_stops_the_work_and_bad_limits_are_refused(tmp_path, capsys):
+    ladder = "frequency 50 Hz\nV1: voltage n0 -> 0 1 V\n" + "".join(
+        f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\nC{k}: capacitor n{k + 1} -> 0 1 uF\n"
+        f"L{k}: inductor n{k + 1} -> 0 1 mH\n" for k in range(7))
+    path = _file(tmp_path, ladder)
+    # common practice, no source: a bounded run says which limit it hit and how to stay under
+    assert main(["formula", path, "--probe", "Z(n3, n7)", "--time-limit", "0.3"]) == 2
+    err = capsys.readouterr().err
+    assert "time limit" in err and "0.3 s" in err and "--keep R1 C1" in err
+    for bad in ("0", "-1", "nan", "inf", "7200", "soon"):
+        try:
+            main(["formula", path, "--probe", "V(n1)", "--time-limit", bad])
+        except SystemExit as stop:
+            assert stop.code == 2
+        else:
+            raise AssertionError(f"--time-limit {bad} was taken")
+        err = capsys.readouterr().err
+        assert "--time-limit" in err and "Traceback" not in err

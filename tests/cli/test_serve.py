@@ -97,7 +97,25 @@ def test_limits_are_serve_flags(monkeypatch):
     assert both.max_body_bytes == 64 * 2 ** 20 and both.solve_workers == 2
 
 
-@pytest.mark.parametrize("flag", ["--max-elements", "--max-body-mb", "--workers"])
+def test_queue_and_time_settings_are_serve_flags(monkeypatch):
+    # common practice, no source: every limit a refusal names can be set where the server
+    # is started (the 503's Retry-After, the formula's time limit, the page's wait)
+    s = _settings_of(monkeypatch, "--small-workers", "3", "--large-queue", "0",
+                     "--small-queue", "8", "--formula-seconds", "2.5", "--page-timeout", "90")
+    assert (s.small_workers, s.large_queue, s.small_queue) == (3, 0, 8)
+    assert (s.formula_seconds, s.page_timeout_s) == (2.5, 90.0)
+
+
+@pytest.mark.parametrize("flag", ["--max-elements", "--max-body-mb", "--workers",
+                                  "--small-workers", "--formula-seconds", "--page-timeout"])
 def test_limits_must_be_positive(flag, capsys):
     assert serve.serve_main(parse(flag, "0", "--port", "8123")) == 2
+    assert flag in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("flag, value", [("--large-queue", "-1"), ("--small-queue", "-3"),
+                                         ("--formula-seconds", "nan"),
+                                         ("--page-timeout", "7200")])
+def test_queues_and_times_out_of_range_are_refused(flag, value, capsys):
+    assert serve.serve_main(parse(flag, value, "--port", "8123")) == 2
     assert flag in capsys.readouterr().err

@@ -68,5 +68,5 @@ def test_bad_probe_shows_the_problem(new_page, formula_server, artifacts):
     page.wait_for_selector("#formula-out .tool-problems", timeout=TIMEOUT_MS)
     text = page.inner_text("#formula-out .tool-problems")
     # studies.md: every problem in one pass, with a did-you-mean
-    assert "did you mean 'left'" in text and "--keep 'Rq'" in text
+    assert "did you mean 'left'" in text and "Keep 'Rq'" in text and "--keep" not in text
     page.screenshot(path=str(artifacts / "formula-tab-error.png"))

@@ -106,6 +106,9 @@ def test_formula_bad_input_answers_422_with_every_error(api):  # noqa: F811
     assert len(errors) == 3
     (probe,) = [e for e in errors if e["column"] is not None]
     assert probe["column"] == 6 and "did you mean 'r'" in probe["hint"]
+    # common practice, no source: the page has fields, not flags — name them as it does
+    words = " ".join(e["message"] + " " + (e["hint"] or "") for e in errors)
+    assert "Keep 'R7'" in words and "Solve for 'R9'" in words and "--" not in words
 
 
 def test_formula_time_limit_is_a_422_that_says_so(api):  # noqa: F811
@@ -117,6 +120,7 @@ def test_formula_time_limit_is_a_422_that_says_so(api):  # noqa: F811
     # common practice, no source: a bounded server says which limit it hit
     assert r.status_code == 422
     assert r.json()["errors"][0]["message"].startswith(("time limit", "size limit"))
+    assert "Keep: " in r.json()["errors"][0]["hint"] and "--keep" not in r.json()["errors"][0]["hint"]
 HARMONIC = """frequency 50 Hz
 Vs: voltage s -> 0 230 V
 Rs: resistor s -> m 0.1 ohm

@@ -23,20 +23,37 @@ def add_formula_command(commands) -> None:
                               "all); the others take their values from the text")
     formula.add_argument("--solve-for", metavar="NAME",
                          help="solve 'numerator = 0' for this element (a balance condition)")
+    formula.add_argument("--time-limit", type=_seconds, default=None, metavar="S",
+                         help="seconds the symbolic work may take before it is stopped "
+                              "(default 20; at most 3600)")
     formula.add_argument("--json", action="store_true",
                          help="the study's JSON (text, LaTeX and MathML of each formula)")
     formula.add_argument("-o", dest="output", metavar="OUT", help="write to OUT, not stdout")
     formula.set_defaults(run=command_formula)
 
 
+def _seconds(word: str) -> float:
+    """A time limit in seconds: a finite number above 0 and at most an hour."""
+    import argparse
+    import math
+    try:
+        value = float(word)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"'{word}' is not a number of seconds") from None
+    if not (math.isfinite(value) and 0 < value <= 3600):
+        raise argparse.ArgumentTypeError(f"{word} s: give a time above 0 and at most 3600 s")
+    return value
+
+
 def command_formula(args) -> int:
     from ..presentation.studies.formula import summary_text
-    from ..studies.formula import run_formula
+    from ..studies.formula import TIME_LIMIT_S, run_formula
     from ..workflow import read_circuit
     text, name = load_source(args)
     circuit = read_circuit(text, name)
     try:
-        result = run_formula(circuit, args.probe, args.keep, args.solve_for)
+        result = run_formula(circuit, args.probe, args.keep, args.solve_for,
+                             time_limit=args.time_limit or TIME_LIMIT_S)
     except CircuitError as exc:
         _print_probe_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT

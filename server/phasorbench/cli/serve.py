@@ -11,9 +11,10 @@ import ipaddress
 import sys
 import threading
 
-from ..web.settings import (DEFAULT_HOST, DEFAULT_PORT, LOOPBACK_NAMES, MAX_ELEMENTS, SETTINGS_HELP,
-                            SOLVE_WORKERS, SWITCH_INTERVAL_S, WILDCARD_HOSTS, Settings,
-                            body_limit)
+from ..web.settings import (DEFAULT_HOST, DEFAULT_PORT, FORMULA_SECONDS, LARGE_QUEUE,
+                            LOOPBACK_NAMES, MAX_ELEMENTS, PAGE_TIMEOUT_S, SETTINGS_HELP,
+                            SMALL_QUEUE, SMALL_WORKERS, SOLVE_WORKERS, SWITCH_INTERVAL_S,
+                            WILDCARD_HOSTS, Settings, body_limit)
 
 __all__ = ["add_serve_arguments", "add_serve_command", "serve_main", "is_loopback", "page_url"]
 
@@ -32,6 +33,16 @@ def add_serve_arguments(parser: argparse.ArgumentParser) -> None:
                         help=SETTINGS_HELP["max_body_bytes"])
     parser.add_argument("--workers", type=int, default=SOLVE_WORKERS, metavar="N",
                         help=SETTINGS_HELP["solve_workers"])
+    parser.add_argument("--small-workers", type=int, default=SMALL_WORKERS, metavar="N",
+                        help=SETTINGS_HELP["small_workers"])
+    parser.add_argument("--large-queue", type=int, default=LARGE_QUEUE, metavar="N",
+                        help=SETTINGS_HELP["large_queue"])
+    parser.add_argument("--small-queue", type=int, default=SMALL_QUEUE, metavar="N",
+                        help=SETTINGS_HELP["small_queue"])
+    parser.add_argument("--formula-seconds", type=float, default=FORMULA_SECONDS, metavar="S",
+                        help=SETTINGS_HELP["formula_seconds"])
+    parser.add_argument("--page-timeout", type=float, default=PAGE_TIMEOUT_S, metavar="S",
+                        help=SETTINGS_HELP["page_timeout_s"])
     parser.add_argument("--scheduler", metavar="ADDRESS", default=None,
                         help=SETTINGS_HELP["scheduler"])
     parser.add_argument("--allow-host", action="append", default=[], metavar="NAME",
@@ -87,17 +98,35 @@ def serve_main(args) -> int:
     max_elements = getattr(args, "max_elements", MAX_ELEMENTS)
     body_mb = getattr(args, "max_body_mb", None)
     workers = getattr(args, "workers", SOLVE_WORKERS)
+    small_workers = getattr(args, "small_workers", SMALL_WORKERS)
+    large_queue = getattr(args, "large_queue", LARGE_QUEUE)
+    small_queue = getattr(args, "small_queue", SMALL_QUEUE)
+    formula_s = getattr(args, "formula_seconds", FORMULA_SECONDS)
+    page_s = getattr(args, "page_timeout", PAGE_TIMEOUT_S)
     for flag, value in (("--max-elements", max_elements), ("--max-body-mb", body_mb),
-                        ("--workers", workers)):
-        if value is not None and not value > 0:
-            print(f"phasorbench serve: {flag} must be greater than 0, not {value}",
+                        ("--workers", workers), ("--small-workers", small_workers),
+                        ("--formula-seconds", formula_s), ("--page-timeout", page_s)):
+        # written so that NaN fails too; an hour bounds the time settings
+        if value is not None and not (0 < value < float("inf")):
+            print(f"phasorbench serve: {flag} must be a number greater than 0, not {value}",
                   file=sys.stderr)
+            return 2
+    for flag, value in (("--formula-seconds", formula_s), ("--page-timeout", page_s)):
+        if value > 3600:
+            print(f"phasorbench serve: {flag} must be at most 3600 s, not {value:g}",
+                  file=sys.stderr)
+            return 2
+    for flag, value in (("--large-queue", large_queue), ("--small-queue", small_queue)):
+        if value < 0:
+            print(f"phasorbench serve: {flag} must be 0 or more, not {value}", file=sys.stderr)
             return 2
     settings = Settings(host=args.host, port=args.port, initial_sample=sample,
                         max_elements=max_elements,
                         max_body_bytes=(int(body_mb * 2**20) if body_mb is not None
                                         else body_limit(max_elements)),
-                        solve_workers=workers,
+                        solve_workers=workers, small_workers=small_workers,
+                        large_queue=large_queue, small_queue=small_queue,
+                        formula_seconds=formula_s, page_timeout_s=page_s,
                         allowed_hosts=tuple(getattr(args, "allow_host", []) or ()),
                         scheduler=getattr(args, "scheduler", None))
     if sample and not (settings.samples_dir / f"{sample}.circuit").is_file():

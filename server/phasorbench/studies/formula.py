@@ -45,7 +45,15 @@ TIME_LIMIT_S = 20.0
 #: The numeric check passes at this relative difference.
 CHECK_RTOL = 1e-9
 
-_FEWER = "keep fewer symbols, e.g. --keep R1 C1 (the others take their values from the text)"
+#: How the options are spelled in the messages: the command line's flags (the default),
+#: or the page's fields (``keep`` and ``solve_for`` of the API's body).
+COMMAND_LINE = {"keep": "--keep", "solve_for": "--solve-for", "example": "--keep R1 C1"}
+PAGE = {"keep": "Keep", "solve_for": "Solve for", "example": "Keep: R1 C1"}
+
+
+def _fewer(spelling: dict) -> str:
+    return (f"keep fewer symbols, e.g. {spelling['example']} (the others take their "
+            "values from the text)")
 
 
 def symbol_table(circuit: Circuit) -> list[dict]:
@@ -71,7 +79,8 @@ def _unknowns(circuit: Circuit) -> int:
     return nodes + branch + 2 * len(circuit.couplings)
 
 
-def _keep_names(keep, entries: list[dict], solve_for: str | None) -> tuple[list[str], list]:
+def _keep_names(keep, entries: list[dict], solve_for: str | None,
+                spelling: dict = COMMAND_LINE) -> tuple[list[str], list]:
     """The kept symbol names, and a diagnostic per unknown name in ``keep``."""
     by_element = {el: e["name"] for e in entries for el in e["elements"]}
     names = [e["name"] for e in entries]
@@ -92,13 +101,13 @@ def _keep_names(keep, entries: list[dict], solve_for: str | None) -> tuple[list[
                     + ", ".join(names[:12]) + (", …" if len(names) > 12 else ""))
             if word == "s":
                 hint = "s (the complex frequency) is always kept"
-            problems.append(Diagnostic(f"--keep '{word}': not an element or named value "
+            problems.append(Diagnostic(f"{spelling['keep']} '{word}': not an element or named value "
                                        "of this circuit", hint))
     if solve_for is not None:
         if solve_for not in by_element and solve_for not in names:
             close = _close(solve_for, list(by_element))
             problems.append(Diagnostic(
-                f"--solve-for '{solve_for}': not an element of this circuit",
+                f"{spelling['solve_for']} '{solve_for}': not an element of this circuit",
                 f"did you mean '{close[0]}'?" if close else
                 "name an element of the probe's numerator"))
         else:
@@ -107,8 +116,11 @@ def _keep_names(keep, entries: list[dict], solve_for: str | None) -> tuple[list[
 
 
 def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | None = None,
-                time_limit: float = TIME_LIMIT_S, max_terms: int = MAX_TERMS) -> dict:
-    """The formula JSON of studies.md; ``CircuitError`` for any input problem or limit."""
+                time_limit: float = TIME_LIMIT_S, max_terms: int = MAX_TERMS,
+                spelling: dict = COMMAND_LINE) -> dict:
+    """The formula JSON of studies.md; ``CircuitError`` for any input problem or limit.
+
+    ``spelling`` names the options in the messages (``COMMAND_LINE`` or ``PAGE``)."""
     circuit, zeroed = zero_own_frequency_sources(circuit)
     problems = []
     try:
@@ -117,7 +129,7 @@ def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | N
         problems.extend(exc.diagnostics)
     entries = [e for e in symbol_table(circuit)
                if not all(el in zeroed for el in e["elements"])]
-    kept, wrong = _keep_names(keep, entries, solve_for)
+    kept, wrong = _keep_names(keep, entries, solve_for, spelling)
     problems.extend(wrong)
     if problems:
         raise CircuitError(problems)
@@ -130,10 +142,11 @@ def run_formula(circuit: Circuit, probe_text: str, keep=None, solve_for: str | N
     if len(kept) > MAX_SYMBOLS:
         raise CircuitError([Diagnostic(
             f"size limit: {len(kept)} symbols would stay symbolic, above the limit of "
-            f"{MAX_SYMBOLS}", _FEWER)])
+            f"{MAX_SYMBOLS}", _fewer(spelling))])
     symbol_of = {el: e["name"] for e in entries for el in e["elements"]}
     answer = _in_worker(circuit, probe, entries, kept,
-                        symbol_of.get(solve_for, solve_for), time_limit, max_terms)
+                        symbol_of.get(solve_for, solve_for), time_limit, max_terms,
+                        _fewer(spelling))
     solved = _solved_value(circuit, probe)
     at_f = complex(answer["value_at_frequency"]["re"], answer["value_at_frequency"]["im"])
     difference = abs(at_f - solved) / max(abs(solved), 1e-300)
@@ -249,28 +262,29 @@ _lock = threading.Lock()
 atexit.register(_worker.stop)           # the worker ends with its parent, pipes closed
 
 
-def _in_worker(circuit, probe, entries, kept, solve_for, time_limit, max_terms) -> dict:
+def _in_worker(circuit, probe, entries, kept, solve_for, time_limit, max_terms,
+               fewer: str) -> dict:
     job = (circuit, probe, entries, kept, solve_for, max_terms)
     with _lock:
         answer = _worker.run(job, time_limit)
     if answer is _TIMED_OUT:
         raise CircuitError([Diagnostic(
             f"time limit: the formula took longer than {time_limit:g} s and was "
-            "stopped", _FEWER)])
+            "stopped", fewer)])
     status, payload = answer
     if status == "size":
         terms, limit = payload
         raise CircuitError([Diagnostic(
             f"size limit: the formula has {terms:,} terms, above the limit of {limit:,}",
-            _FEWER)])
+            fewer)])
     if status == "memory":
         raise CircuitError([Diagnostic(
             f"size limit: the formula needed more than {payload // 2**20:,} MB and was "
-            "stopped", _FEWER)])
+            "stopped", fewer)])
     if status == "stopped":
         raise CircuitError([Diagnostic(
             "size limit: the formula's worker process stopped before it answered (most "
-            "likely out of memory)", _FEWER)])
+            "likely out of memory)", fewer)])
     if status == "problem":
         raise CircuitError([Diagnostic(*payload)])
     if status != "ok":

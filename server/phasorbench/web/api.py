@@ -211,7 +211,8 @@ def error_response(status: int, message: str, hint: str = "") -> StrictJSONRespo
                               status_code=status)
 
 
-BUSY_HINT = "try again in a few seconds; the server is working through other requests"
+BUSY_HINT = ("try again in a few seconds; the server is working through other requests "
+             "(whoever starts it can let more wait: serve --large-queue N)")
 
 
 def busy_response(full: jobs.LaneFull) -> StrictJSONResponse:

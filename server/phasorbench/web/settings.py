@@ -149,6 +149,15 @@ SETTINGS_HELP = {
                      "gets 422; the body limit grows with it"),
     "max_view_elements": f"elements per waveform or phasor request (default {MAX_VIEW_ELEMENTS})",
     "solve_workers": f"worker threads for solving (default {SOLVE_WORKERS})",
+    "small_workers": (f"worker threads kept for hand-sized circuits, so they are answered "
+                      f"while big ones queue (default {SMALL_WORKERS})"),
+    "large_queue": (f"big jobs that may wait for a worker; one more gets 503 with "
+                    f"Retry-After (default {LARGE_QUEUE})"),
+    "small_queue": f"hand-sized jobs that may wait (default {SMALL_QUEUE})",
+    "formula_seconds": (f"seconds one formula's symbolic work may take before it is "
+                        f"stopped (default {FORMULA_SECONDS:g})"),
+    "page_timeout_s": (f"seconds the page waits for an answer before it says the server "
+                       f"is not answering (default {PAGE_TIMEOUT_S:g})"),
     "scheduler": "address of a Dask scheduler that runs the tolerance studies' chunks "
                  "(the 'cluster' extra; default: none, in-process)",
 }

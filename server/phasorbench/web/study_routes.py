@@ -188,10 +188,10 @@ class FormulaBody(api.CircuitBody, FormulaAsk):
 def formula_answer(text: str, ask: dict, settings: Settings) -> dict:
     """The formula JSON of studies.md plus ``display`` (the page's and the sheet's rows)."""
     from ..presentation.studies.formula import formula_display
-    from ..studies.formula import run_formula
+    from ..studies.formula import PAGE, run_formula
     circuit = _read(text, settings)
     result = run_formula(circuit, ask["probe"], ask.get("keep"), ask.get("solve_for"),
-                         time_limit=settings.formula_seconds)
+                         time_limit=settings.formula_seconds, spelling=PAGE)
     return dict(result, display=formula_display(result))
 
 
