@@ -63,9 +63,9 @@ def test_a_frozen_server_is_reported_and_solve_comes_back(new_page, freezing_ser
     page.screenshot(path=str(artifacts / "server-frozen.png"))
 
 
-def test_export_with_the_server_down_blames_the_server(new_page, bench_samples, page_errors):
-    # common practice, no source: a refused connection is the server's state, not the
-    # circuit's; Export must say so
+@pytest.fixture
+def orphaned_page(new_page, bench_samples, page_errors):
+    """A page that loaded and solved the bench circuit, whose server has then stopped."""
     port = free_port()
     server = LiveServer(make_app(bench_samples, port=port, initial_sample="rc-bench",
                                  page_timeout_s=5), port).start()
@@ -75,6 +75,16 @@ def test_export_with_the_server_down_blames_the_server(new_page, bench_samples, 
         page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=TIMEOUT_MS)
     finally:
         server.stop()
+    yield page
+    # Chromium logs each refused connection as a console error: expected here, and only
+    # those are let through (any other page error still fails the test)
+    page_errors.errors[:] = [e for e in page_errors.errors if "ERR_CONNECTION_REFUSED" not in e]
+
+
+def test_export_with_the_server_down_blames_the_server(orphaned_page):
+    # common practice, no source: a refused connection is the server's state, not the
+    # circuit's; Export must say so
+    page = orphaned_page
     edited = BENCH_CIRCUIT + "# edited after the server stopped\n"
     type_circuit(page, edited)
     page.click("#export-sheet")
@@ -85,9 +95,6 @@ def test_export_with_the_server_down_blames_the_server(new_page, bench_samples, 
     assert "does not solve" not in banner and "No answer from the server" in banner
     assert page.is_enabled("#export-sheet") and page.is_enabled("#solve")
     assert page.input_value("#editor-text") == edited
-    # Chromium logs each refused connection as a console error: expected here, and only
-    # those are let through (any other page error still fails the test)
-    page_errors.errors[:] = [e for e in page_errors.errors if "ERR_CONNECTION_REFUSED" not in e]
 
 
 @pytest.mark.parametrize("tab, prepare, submit, out", [
@@ -95,19 +102,11 @@ def test_export_with_the_server_down_blames_the_server(new_page, bench_samples, 
     ("harmonics", "", "#hs-form button[type=submit]", "#hs-out"),
     ("formula", "#formula-probe=V(b)/V(a)", "#formula-run", "#formula-out"),
 ])
-def test_study_tabs_with_the_server_down_blame_the_server(
-        tab, prepare, submit, out, new_page, bench_samples, page_errors):
+def test_study_tabs_with_the_server_down_blame_the_server(tab, prepare, submit, out,
+                                                           orphaned_page):
     # common practice, no source: a refused connection is the server's state; each study
     # tab must say so rather than "the circuit does not solve"
-    port = free_port()
-    server = LiveServer(make_app(bench_samples, port=port, initial_sample="rc-bench",
-                                 page_timeout_s=5), port).start()
-    page = new_page()
-    try:
-        open_page(page, server)
-        page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=TIMEOUT_MS)
-    finally:
-        server.stop()
+    page = orphaned_page
     edited = BENCH_CIRCUIT + f"# edited after the server stopped ({tab})\n"
     type_circuit(page, edited)
     page.click(f"#tab-{tab}")
@@ -124,4 +123,3 @@ def test_study_tabs_with_the_server_down_blame_the_server(
     said = page.inner_text(out)
     assert "No answer from the server" in said and "does not solve" not in said
     assert page.input_value("#editor-text") == edited
-    page_errors.errors[:] = [e for e in page_errors.errors if "ERR_CONNECTION_REFUSED" not in e]

@@ -9,7 +9,7 @@ import sys
 
 from ..errors import Diagnostic, format_diagnostic, source_lines
 
-__all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
+__all__ = ["print_study_diagnostics", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
            "load_source", "print_diagnostics", "print_warnings", "dump_json", "write_json"]
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
@@ -111,6 +111,27 @@ def print_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> No
     lines = source_lines(text) if text is not None else None     # split once, not per error
     for d in diagnostics:
         print(format_diagnostic(d, name, lines=lines), file=sys.stderr)
+
+
+#: The option whose own text a study's diagnostic points into.
+_OPTION_OF = {"probe": "--probe", "limit": "--limit"}
+
+
+def print_study_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> None:
+    """A study's problems: those of a probe or a limit with a caret under the option's
+    own text (``--probe:COL: error:``), the rest as the circuit's diagnostics."""
+    import re
+    for d in diagnostics:
+        own = re.match(r"(probe|limit) '(.*?)': ", d.message)
+        if own and d.column and d.line is None:
+            print(f"{_OPTION_OF[own.group(1)]}:{d.column}: error: {d.message}",
+                  file=sys.stderr)
+            print("  " + own.group(2), file=sys.stderr)
+            print("  " + " " * (d.column - 1) + "^" * max(1, d.length), file=sys.stderr)
+            if d.hint:
+                print(f"  hint: {d.hint}", file=sys.stderr)
+        else:
+            print_diagnostics([d], name, text)
 
 
 def dump_json(data) -> str:

@@ -6,8 +6,7 @@ import sys
 
 from ..errors import CircuitError
 from .output import write_output
-from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source
-from .sweep import _print_probe_diagnostics
+from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_study_diagnostics
 
 __all__ = ["add_formula_command", "command_formula"]
 
@@ -55,7 +54,7 @@ def command_formula(args) -> int:
         result = run_formula(circuit, args.probe, args.keep, args.solve_for,
                              time_limit=args.time_limit or TIME_LIMIT_S)
     except CircuitError as exc:
-        _print_probe_diagnostics(exc.diagnostics, name, text)
+        print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
     body = dump_json(result) + "\n" if args.json else summary_text(result)
     failed = write_output(args.output, body)

@@ -19,6 +19,35 @@ from ..web.settings import (DEFAULT_HOST, DEFAULT_PORT, FORMULA_SECONDS, LARGE_Q
 __all__ = ["add_serve_arguments", "add_serve_command", "serve_main", "is_loopback", "page_url"]
 
 
+#: The numeric settings ``serve`` takes: flag, Settings field, type, default, metavar,
+#: and the range a value must fall in (low excluded when 0 is not allowed: see _check).
+_LIMITS = (
+    ("--max-elements", "max_elements", int, MAX_ELEMENTS, "N", 1, None),
+    ("--max-body-mb", "max_body_bytes", float, None, "MB", 0, None),
+    ("--workers", "solve_workers", int, SOLVE_WORKERS, "N", 1, None),
+    ("--small-workers", "small_workers", int, SMALL_WORKERS, "N", 1, None),
+    ("--large-queue", "large_queue", int, LARGE_QUEUE, "N", 0, None),
+    ("--small-queue", "small_queue", int, SMALL_QUEUE, "N", 0, None),
+    ("--formula-seconds", "formula_seconds", float, FORMULA_SECONDS, "S", 0, 3600),
+    ("--page-timeout", "page_timeout_s", float, PAGE_TIMEOUT_S, "S", 0, 3600),
+)
+
+
+def _check(flag: str, kind, value, low, high) -> str | None:
+    """Why ``value`` is refused for ``flag``, or None. Floats must be finite and above
+    ``low``; integers at least ``low``; both at most ``high`` when given."""
+    import math
+    if kind is float:
+        ok = math.isfinite(value) and value > low
+        need = f"a number greater than {low}"
+    else:
+        ok = value >= low
+        need = "0 or more" if low == 0 else f"at least {low}"
+    if ok and high is not None and value > high:
+        ok, need = False, f"at most {high}"
+    return None if ok else f"phasorbench serve: {flag} must be {need}, not {value:g}"
+
+
 def add_serve_arguments(parser: argparse.ArgumentParser) -> None:
     """The options of ``serve``: ``--host``, ``--port``, ``--open``, ``--sample``, limits."""
     parser.add_argument("--host", default=DEFAULT_HOST, help=SETTINGS_HELP["host"])
@@ -27,22 +56,9 @@ def add_serve_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--sample", metavar="NAME", default=None,
                         help="sample (a file name in samples/, without .circuit) the page "
                              "loads when the browser has no saved circuit; default: the first")
-    parser.add_argument("--max-elements", type=int, default=MAX_ELEMENTS, metavar="N",
-                        help=SETTINGS_HELP["max_elements"])
-    parser.add_argument("--max-body-mb", type=float, default=None, metavar="MB",
-                        help=SETTINGS_HELP["max_body_bytes"])
-    parser.add_argument("--workers", type=int, default=SOLVE_WORKERS, metavar="N",
-                        help=SETTINGS_HELP["solve_workers"])
-    parser.add_argument("--small-workers", type=int, default=SMALL_WORKERS, metavar="N",
-                        help=SETTINGS_HELP["small_workers"])
-    parser.add_argument("--large-queue", type=int, default=LARGE_QUEUE, metavar="N",
-                        help=SETTINGS_HELP["large_queue"])
-    parser.add_argument("--small-queue", type=int, default=SMALL_QUEUE, metavar="N",
-                        help=SETTINGS_HELP["small_queue"])
-    parser.add_argument("--formula-seconds", type=float, default=FORMULA_SECONDS, metavar="S",
-                        help=SETTINGS_HELP["formula_seconds"])
-    parser.add_argument("--page-timeout", type=float, default=PAGE_TIMEOUT_S, metavar="S",
-                        help=SETTINGS_HELP["page_timeout_s"])
+    for flag, setting, kind, default, metavar, _low, _high in _LIMITS:
+        parser.add_argument(flag, dest=setting, type=kind, default=default, metavar=metavar,
+                            help=SETTINGS_HELP[setting])
     parser.add_argument("--scheduler", metavar="ADDRESS", default=None,
                         help=SETTINGS_HELP["scheduler"])
     parser.add_argument("--allow-host", action="append", default=[], metavar="NAME",
@@ -95,38 +111,18 @@ def serve_main(args) -> int:
               file=sys.stderr)
         return 2
     sample = getattr(args, "sample", None)
-    max_elements = getattr(args, "max_elements", MAX_ELEMENTS)
-    body_mb = getattr(args, "max_body_mb", None)
-    workers = getattr(args, "workers", SOLVE_WORKERS)
-    small_workers = getattr(args, "small_workers", SMALL_WORKERS)
-    large_queue = getattr(args, "large_queue", LARGE_QUEUE)
-    small_queue = getattr(args, "small_queue", SMALL_QUEUE)
-    formula_s = getattr(args, "formula_seconds", FORMULA_SECONDS)
-    page_s = getattr(args, "page_timeout", PAGE_TIMEOUT_S)
-    for flag, value in (("--max-elements", max_elements), ("--max-body-mb", body_mb),
-                        ("--workers", workers), ("--small-workers", small_workers),
-                        ("--formula-seconds", formula_s), ("--page-timeout", page_s)):
-        # written so that NaN fails too; an hour bounds the time settings
-        if value is not None and not (0 < value < float("inf")):
-            print(f"phasorbench serve: {flag} must be a number greater than 0, not {value}",
-                  file=sys.stderr)
+    limits = {}
+    for flag, setting, kind, default, _metavar, low, high in _LIMITS:
+        value = getattr(args, setting, default)
+        refused = None if value is None else _check(flag, kind, value, low, high)
+        if refused:
+            print(refused, file=sys.stderr)
             return 2
-    for flag, value in (("--formula-seconds", formula_s), ("--page-timeout", page_s)):
-        if value > 3600:
-            print(f"phasorbench serve: {flag} must be at most 3600 s, not {value:g}",
-                  file=sys.stderr)
-            return 2
-    for flag, value in (("--large-queue", large_queue), ("--small-queue", small_queue)):
-        if value < 0:
-            print(f"phasorbench serve: {flag} must be 0 or more, not {value}", file=sys.stderr)
-            return 2
-    settings = Settings(host=args.host, port=args.port, initial_sample=sample,
-                        max_elements=max_elements,
-                        max_body_bytes=(int(body_mb * 2**20) if body_mb is not None
-                                        else body_limit(max_elements)),
-                        solve_workers=workers, small_workers=small_workers,
-                        large_queue=large_queue, small_queue=small_queue,
-                        formula_seconds=formula_s, page_timeout_s=page_s,
+        limits[setting] = value
+    body_mb = limits.pop("max_body_bytes")
+    limits["max_body_bytes"] = (int(body_mb * 2**20) if body_mb is not None
+                                else body_limit(limits["max_elements"]))
+    settings = Settings(host=args.host, port=args.port, initial_sample=sample, **limits,
                         allowed_hosts=tuple(getattr(args, "allow_host", []) or ()),
                         scheduler=getattr(args, "scheduler", None))
     if sample and not (settings.samples_dir / f"{sample}.circuit").is_file():

@@ -12,7 +12,7 @@ import argparse
 import sys
 
 from ..errors import CircuitError, Diagnostic
-from .common import EXIT_INPUT, EXIT_OK, load_source, print_warnings
+from .common import EXIT_INPUT, EXIT_OK, load_source, print_study_diagnostics, print_warnings
 from .output import voltage_argument, write_output
 
 
@@ -110,7 +110,6 @@ def command_sheet(args) -> int:
     try:
         tolerance = tolerance_section(text, name, ask)
     except CircuitError as exc:
-        from .tolerance import print_study_diagnostics
         print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
     formula_ask = ({"probe": args.formula_probe, "keep": args.formula_keep,
@@ -118,8 +117,7 @@ def command_sheet(args) -> int:
     try:
         formula = formula_section(text, name, formula_ask)
     except CircuitError as exc:
-        from .sweep import _print_probe_diagnostics
-        _print_probe_diagnostics(exc.diagnostics, name, text)
+        print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
     harmonics = None
     if args.harmonics or args.pcc or args.rated:

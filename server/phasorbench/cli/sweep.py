@@ -2,11 +2,10 @@
 
 from __future__ import annotations
 
-import re
 import sys
 
-from ..errors import CircuitError, Diagnostic
-from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_diagnostics
+from ..errors import CircuitError
+from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_study_diagnostics
 from .output import frequency_argument, write_output
 
 __all__ = ["add_sweep_command", "command_sweep", "frequency_argument", "summary"]
@@ -38,7 +37,7 @@ def command_sweep(args) -> int:
         result = run_sweep(circuit, args.probe, args.start, args.stop, args.points,
                            args.spacing)
     except CircuitError as exc:
-        _print_probe_diagnostics(exc.diagnostics, name, text)
+        print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
     if args.json:
         body = dump_json(result) + "\n"
@@ -53,19 +52,6 @@ def command_sweep(args) -> int:
     for warning in result["warnings"]:
         print(f"{name}: warning: {warning}", file=sys.stderr)
     return EXIT_OK
-
-
-def _print_probe_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> None:
-    for d in diagnostics:
-        probe = re.match(r"probe '(.*?)': ", d.message)
-        if probe and d.column:
-            print(f"--probe:{d.column}: error: {d.message}", file=sys.stderr)
-            print("  " + probe.group(1), file=sys.stderr)
-            print("  " + " " * (d.column - 1) + "^" * max(1, d.length), file=sys.stderr)
-            if d.hint:
-                print(f"  hint: {d.hint}", file=sys.stderr)
-        else:
-            print_diagnostics([d], name, text)
 
 
 def summary(result: dict, rows: int = 12) -> str:

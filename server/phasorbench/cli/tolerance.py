@@ -3,14 +3,13 @@ over the circuit's tolerances (studies.md, "Tolerance")."""
 
 from __future__ import annotations
 
-import re
 import sys
 
 from ..errors import CircuitError, Diagnostic
 from .output import write_output
-from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_diagnostics
+from .common import EXIT_INPUT, EXIT_OK, dump_json, load_source, print_study_diagnostics
 
-__all__ = ["add_tolerance_command", "command_tolerance", "print_study_diagnostics"]
+__all__ = ["add_tolerance_command", "command_tolerance"]
 
 
 def add_tolerance_command(commands) -> None:
@@ -59,25 +58,6 @@ def command_tolerance(args) -> int:
     for warning in result["warnings"]:
         print(f"{name}: warning: {warning}", file=sys.stderr)
     return EXIT_OK
-
-
-_OPTION_OF = {"probe": "--probe", "limit": "--limit"}
-
-
-def print_study_diagnostics(diagnostics: list[Diagnostic], name: str, text: str) -> None:
-    """Probe and limit problems with a caret under the option's own text; the rest as
-    the circuit's diagnostics."""
-    for d in diagnostics:
-        own = re.match(r"(probe|limit) '(.*?)': ", d.message)
-        if own and d.column and d.line is None:
-            print(f"{_OPTION_OF[own.group(1)]}:{d.column}: error: {d.message}",
-                  file=sys.stderr)
-            print("  " + own.group(2), file=sys.stderr)
-            print("  " + " " * (d.column - 1) + "^" * max(1, d.length), file=sys.stderr)
-            if d.hint:
-                print(f"  hint: {d.hint}", file=sys.stderr)
-        else:
-            print_diagnostics([d], name, text)
 
 
 def summary(result: dict) -> str:
