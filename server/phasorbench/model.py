@@ -98,6 +98,30 @@ class Group:
     rotation: str | None = None
 
 
+#: Points of a frequency sweep (studies.md, "Frequency response"): the default, and the
+#: range a ``sweep`` line, the command line, the API and the page may ask for.
+SWEEP_DEFAULT_POINTS = 200
+SWEEP_MIN_POINTS = 2
+SWEEP_MAX_POINTS = 100_000
+#: Spacings of a sweep's grid, the first the default.
+SWEEP_SPACINGS = ("log", "linear")
+
+
+@dataclass(frozen=True)
+class SweepRange:
+    """The circuit's default frequency-response range, from its ``sweep`` line.
+
+    ``start`` < ``stop`` in Hz, both finite and above zero; ``points`` and ``spacing``
+    are None where the line leaves them to the defaults (200 points, log spacing).
+    """
+
+    start: float
+    stop: float
+    points: int | None = None
+    spacing: str | None = None
+    line: int | None = None
+
+
 @dataclass
 class Circuit:
     """A whole parsed circuit, ready for the structure checks and the solver."""
@@ -117,6 +141,8 @@ class Circuit:
     warnings: list = field(default_factory=list)      # Diagnostics found while reading
     #: Nodes held at 0 V besides ground: one per part with no conductive path to ground.
     references: tuple[str, ...] = ()
+    #: The ``sweep`` line's range (None: the file has none).
+    sweep: SweepRange | None = None
     _table: "ElementTable | None" = field(default=None, init=False, repr=False,
                                           compare=False)
 

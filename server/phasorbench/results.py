@@ -14,7 +14,8 @@ import math
 import numpy as np
 
 from .errors import AnalysisError, Diagnostic
-from .model import CONTROLLED_KINDS, PASSIVE_KINDS, SOURCE_KINDS
+from .model import (CONTROLLED_KINDS, PASSIVE_KINDS, SOURCE_KINDS, SWEEP_DEFAULT_POINTS,
+                    SWEEP_SPACINGS)
 from .solver import Solution
 
 #: |Q| at or below this fraction of |S| counts as "unity" power factor.
@@ -154,6 +155,13 @@ def _contract(solution: Solution) -> dict:
         result["couplings"] = {
             c.name: {"inductors": list(c.inductors), "k": c.k, "m_h": c.m, "line": c.line}
             for c in circuit.couplings.values()}
+    if circuit.sweep is not None:
+        # the file's default frequency-response range (its ``sweep`` line), with the
+        # study's defaults where the line leaves the points or the spacing out
+        s = circuit.sweep
+        result["sweep"] = {"from_hz": s.start, "to_hz": s.stop,
+                           "points": s.points or SWEEP_DEFAULT_POINTS,
+                           "spacing": s.spacing or SWEEP_SPACINGS[0], "line": s.line}
     if circuit.groups:
         result["groups"] = {name: _group(group, result, solution, floor)
                             for name, group in circuit.groups.items()}

@@ -35,6 +35,13 @@ export function createSweep({getSolved, whyNotSolved}) {
 
   function update(choices) {
     offered = (choices && choices.probes) || [];
+    // Empty fields take the circuit's sweep line: its range shows as the placeholders.
+    const own = (choices && choices.sweep) || null;
+    $("sweep-from").placeholder = own ? own.from : "auto";
+    $("sweep-to").placeholder = own ? own.to : "auto";
+    $("sweep-points").placeholder = own ? own.points : "auto";
+    $("sweep-spacing").options[0].textContent = own ? `auto (${own.spacing})` : "auto";
+    $("sweep-form").dataset.ownRange = own ? own.words : "";
     const kept = picked.filter((p) => offered.includes(p) || p.includes("/"));
     if (!kept.length && offered.length) kept.push(offered[0]);
     picked = kept;

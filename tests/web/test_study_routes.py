@@ -161,3 +161,35 @@ def test_harmonics_bad_input_is_422_with_every_error(api):  # noqa: F811
     assert error["line"] == 6 and error["column"] == column and "not above 1" in error["message"]
     r = api.post("/api/harmonics", json={"netlist": HARMONIC, "rated": {"Cb": "high"}})
     assert r.status_code == 422                       # the framework's refusal, same shape
+
+
+def test_the_circuits_sweep_line_is_the_default_range(api):  # noqa: F811
+    text = RLC + "sweep 1 kHz to 50 kHz, 101 points\n"
+    r = api.post("/api/sweep", json={"netlist": text, "probes": ["I(R1)"]})
+    assert r.status_code == 200
+    body = r.json()
+    # studies.md: the directive's range when the request gives none
+    assert body["range"] == {"from_hz": 1000.0, "to_hz": 50000.0, "points": 101,
+                             "spacing": "log"}
+    (peak,) = body["resonances"]
+    assert math.isclose(peak["frequency_hz"], 7957.75, rel_tol=1e-6)   # check-values C5
+    # studies.md: the API may override it
+    r = api.post("/api/sweep", json={"netlist": text, "probes": ["I(R1)"], "points": 5,
+                                     "spacing": "linear"})
+    assert r.json()["frequencies_hz"] == [1000.0, 13250.0, 25500.0, 37750.0, 50000.0]
+
+
+def test_a_bad_sweep_line_is_422_at_its_column(api):  # noqa: F811
+    r = api.post("/api/sweep", json={"netlist": RLC + "sweep 5 kHz to 1 kHz, 1 points\n",
+                                     "probes": ["I(R1)"]})
+    assert r.status_code == 422
+    # circuit-language.md / studies.md: FROM < TO and 2 ≤ points, both in one pass
+    assert [(e["line"], e["column"]) for e in r.json()["errors"]] == [(6, 7), (6, 23)]
+
+
+def test_the_work_bound_counts_the_sweep_lines_points(api):  # noqa: F811
+    big = "frequency 50 Hz\nsweep 1 Hz to 1 kHz, 100000 points\nVs: voltage n0 -> 0 1 V\n" \
+        + "".join(f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\n" for k in range(60))
+    r = api.post("/api/sweep", json={"netlist": big, "probes": ["V(n5)"]})
+    # common practice, no source: the bound holds whoever chose the points
+    assert r.status_code == 422 and "100,000 points" in r.json()["errors"][0]["message"]

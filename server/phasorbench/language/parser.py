@@ -9,6 +9,7 @@ except ``CircuitSyntaxError`` holding all of them.
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import re
 
@@ -19,12 +20,13 @@ from .expressions import LanguageError, Quantity, TokenStream
 from .lexer import Token, tokenize
 from .lookalikes import foreign_digits_hint, name_hint, node_warnings
 from .suggest import NameIndex
+from .sweeprange import read_sweep
 from .values import expect_unit, parse_value
 
 NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
 #: A named value spelt like this would be read as an imaginary number (j5 is 5j) where used.
 IMAGINARY_NAME = re.compile(r"j\d")
-DIRECTIVES = ("title", "frequency", "amplitudes")
+DIRECTIVES = ("title", "frequency", "sweep", "amplitudes")
 #: A file larger than this many lines is refused before any work (a guard for pasted junk).
 MAX_LINES = 400_000
 
@@ -61,6 +63,7 @@ class CircuitParser:
         self.title: str | None = None
         self.frequency: float | None = None
         self.amplitudes = "rms"
+        self.sweep = None
         self.directive_lines: dict[str, int] = {}
         #: Element lines dropped for a bad name: the file has elements, just not readable.
         self.unread_elements = 0
@@ -256,6 +259,14 @@ class CircuitParser:
         elif word == "frequency":
             self.directive_lines[word] = line.number
             self.frequency = self.read_frequency(line, rest, first)
+        elif word == "sweep":
+            self.directive_lines[word] = line.number
+            sweep, problems = read_sweep(rest, first, line.text, self.lookup, self.nesting,
+                                         quiet=(_Poisoned,))
+            for problem in problems:
+                self.language_error(line, problem)
+            if sweep is not None:
+                self.sweep = dataclasses.replace(sweep, line=line.number)
         elif word == "amplitudes":
             self.directive_lines[word] = line.number
             if len(rest) == 1 and rest[0].text.lower() in ("rms", "peak"):
@@ -297,7 +308,7 @@ class CircuitParser:
             return
         close = difflib.get_close_matches(word.lower(), DIRECTIVES, n=1)
         hint = (f"did you mean '{close[0]}'?" if close else
-                "a line is a directive (title, frequency, amplitudes), a named value "
+                "a line is a directive (title, frequency, sweep, amplitudes), a named value "
                 "(NAME = VALUE) or an element (NAME: KIND ...)")
         self.error(line.number, f"'{word}' is not a directive", hint, first.start, first.end)
 
@@ -400,7 +411,8 @@ class CircuitParser:
 
     def empty(self) -> Circuit:
         return Circuit(title=self.title, frequency=self.frequency or 0.0,
-                       amplitudes=self.amplitudes, text=self.text, filename=self.filename)
+                       amplitudes=self.amplitudes, text=self.text, filename=self.filename,
+                       sweep=self.sweep)
 
     def file_checks(self, circuit: Circuit, reader: ElementReader) -> None:
         if not self.text.strip():

@@ -350,7 +350,8 @@ def tool_choices(result: dict) -> dict:
     """What the page's tools offer to pick: sources to correct, nodes, three-phase blocks.
 
     ``{"sources": [{"name", "kind", "three_phase", "lines", "label"}], "nodes": [...],
-    "groups": [{"name", "label"}], "probes": ["Z(n)", "V(n)", "I(E)", ...]}``. A correctable source is an independent voltage or
+    "groups": [{"name", "label"}], "probes": ["Z(n)", "V(n)", "I(E)", ...], "sweep": the
+    circuit's sweep line as the page's range fields show it, or None}``. A correctable source is an independent voltage or
     current source of its own, or a ``voltage3`` block (its phases are not offered alone).
     """
     sources = []
@@ -372,7 +373,18 @@ def tool_choices(result: dict) -> dict:
     live = [n for n in nodes if n != "0"]
     probes = ([f"Z({n})" for n in live] + [f"V({n})" for n in live] +
               [f"I({name})" for name in result.get("elements", {})])
-    return {"sources": sources, "nodes": nodes, "groups": groups, "probes": probes}
+    return {"sources": sources, "nodes": nodes, "groups": groups, "probes": probes,
+            "sweep": _sweep_choice(result.get("sweep"))}
+
+
+def _sweep_choice(sweep: dict | None) -> dict | None:
+    """The circuit's ``sweep`` line for the range fields' placeholders (numbers in Hz as
+    the fields take them, 9 significant digits)."""
+    if not sweep:
+        return None
+    return {"from": plain(sweep["from_hz"], 9), "to": plain(sweep["to_hz"], 9),
+            "points": str(sweep["points"]), "spacing": sweep["spacing"],
+            "words": f"{eng(sweep['from_hz'], 'Hz')} to {eng(sweep['to_hz'], 'Hz')}"}
 
 
 # --- power tools ------------------------------------------------------------------------

@@ -14,11 +14,12 @@ import math
 import numpy as np
 
 from ..errors import CircuitError, Diagnostic
+from ..model import SWEEP_DEFAULT_POINTS, SWEEP_MAX_POINTS
 from .engine import SweepEngine, zero_own_frequency_sources
 from .probes import describe, parse_probes
 
-DEFAULT_POINTS = 200
-MAX_POINTS = 100_000
+DEFAULT_POINTS = SWEEP_DEFAULT_POINTS
+MAX_POINTS = SWEEP_MAX_POINTS
 
 
 def grid(start: float, stop: float, points: int, spacing: str = "log") -> np.ndarray:
@@ -31,9 +32,26 @@ def grid(start: float, stop: float, points: int, spacing: str = "log") -> np.nda
     return f
 
 
+def chosen_points(circuit, points):
+    """The points asked for, else the circuit's ``sweep`` line's, else the default."""
+    if points is None and circuit.sweep is not None:
+        points = circuit.sweep.points
+    return DEFAULT_POINTS if points is None else points
+
+
 def check_range(circuit, start, stop, points, spacing) -> tuple[float, float, int, str]:
-    """The range with studies.md's defaults; every problem in one ``CircuitError``."""
+    """The range with studies.md's defaults; every problem in one ``CircuitError``.
+
+    What the request leaves out (the range, the points, the spacing, each on its own)
+    comes from the circuit's ``sweep`` line when it has one, else from the defaults.
+    """
     problems = []
+    own = circuit.sweep
+    if own is not None:
+        if start is None and stop is None:
+            start, stop = own.start, own.stop
+        spacing = spacing or own.spacing
+    points = chosen_points(circuit, points)
     base = circuit.frequency if circuit.frequency and circuit.frequency > 0 else None
     if start is None and stop is None:
         if base is None:
@@ -52,7 +70,6 @@ def check_range(circuit, start, stop, points, spacing) -> tuple[float, float, in
     if not problems and start >= stop:
         problems.append(Diagnostic(f"FROM ({start:g} Hz) must be below TO ({stop:g} Hz)",
                                    "swap the two ends"))
-    points = DEFAULT_POINTS if points is None else points
     if not isinstance(points, int) or not 2 <= points <= MAX_POINTS:
         problems.append(Diagnostic(f"points must be a whole number from 2 to {MAX_POINTS:,}",
                                    "for example 400"))

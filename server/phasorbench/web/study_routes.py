@@ -110,10 +110,10 @@ async def harmonics(body: HarmonicsBody, request: Request):
 
 def sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
     """The sweep JSON of studies.md, after the work bound."""
-    from ..studies.sweep import DEFAULT_POINTS, run_sweep
+    from ..studies.sweep import chosen_points, run_sweep
     circuit = _read(text, settings)
     unknowns = _unknowns(circuit)
-    points = ask.get("points") or DEFAULT_POINTS
+    points = chosen_points(circuit, ask.get("points"))
     if isinstance(points, int) and points * max(1, unknowns) > MAX_SWEEP_WORK:
         raise CircuitError([Diagnostic(
             f"this sweep is {points:,} points × {unknowns:,} unknowns, above the server's "
