@@ -238,3 +238,12 @@ def test_every_finite_float_formats(value):
         number, _, rest = fmt.eng(value, "V").partition(" ")
         back = Decimal(number) * Decimal(10) ** PREFIX_POWERS.get(rest[:-1], 0)
         assert abs(back - Decimal(value)) <= Decimal("5.0001e-4") * abs(Decimal(value))
+
+
+@pytest.mark.parametrize("n, text", [(1, "1st"), (2, "2nd"), (3, "3rd"), (4, "4th"),
+                                     (5, "5th"), (11, "11th"), (12, "12th"), (13, "13th"),
+                                     (21, "21st"), (22, "22nd"), (23, "23rd"), (101, "101st"),
+                                     (111, "111th"), (113, "113th")])
+def test_ordinals_read_as_english(n, text):
+    # common practice, no source: English ordinal suffixes (the teens take "th")
+    assert fmt.ordinal(n) == text

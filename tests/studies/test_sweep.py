@@ -116,6 +116,22 @@ C1: capacitor a -> 0 8 uF
     assert any("79th harmonic" in w for w in r["warnings"])
 
 
+def test_a_resonance_near_the_third_order_is_named_in_words():
+    # textbook f0 = 1/(2π√(LC)): 1 mH with 1.2 mF resonates at 145.3 Hz, order 2.91 of
+    # 50 Hz, within ±10 % of the 3rd (studies.md); common practice, no source: "3rd"
+    circuit = read_circuit("""frequency 50 Hz
+Is: current 0 -> a 1 A
+R1: resistor a -> 0 50 ohm
+L1: inductor a -> 0 1 mH
+C1: capacitor a -> 0 1.2 mF
+""")
+    r = run_sweep(circuit, ["Z(a)"], start=50, stop=500, points=200)
+    (peak,) = r["resonances"]
+    assert peak["frequency_hz"] == pytest.approx(1 / (2 * math.pi * (1e-3 * 1.2e-3) ** 0.5),
+                                                 rel=1e-6)
+    assert any("of the 3rd harmonic" in w for w in r["warnings"])
+
+
 def test_band_pass_points_c8_c9():
     # check-values C8 (Q = 1) and C9 (Q = 10) at the listed ω
     for R, points in ((100, {5000: (0.5547, 56.3099), 10000: (1, 0), 20000: (0.5547,

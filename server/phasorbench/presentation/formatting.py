@@ -19,6 +19,7 @@ import cmath
 import math
 
 __all__ = [
+    "ordinal",
     "ELEMENT_COLUMNS",
     "LIMITED",
     "SHOWN_DIGITS",
@@ -153,6 +154,13 @@ def plain(value, digits: int = 4) -> str:
         return f"{_trim(mant)}e{int(exp)}"
     decimals = max(digits - 1 - math.floor(math.log10(abs(float(f"{value:.{digits - 1}e}")))), 0)
     return _trim(f"{value:.{decimals}f}")
+
+
+def ordinal(n: int) -> str:
+    """``1st``, ``2nd``, ``3rd``, ``4th`` … ``11th``, ``12th``, ``13th``, ``21st``."""
+    n = int(n)
+    suffix = "th" if 10 <= n % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(n % 10, "th")
+    return f"{n}{suffix}"
 
 
 def _normal_deg(deg: float) -> float:

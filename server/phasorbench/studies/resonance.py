@@ -8,6 +8,7 @@ import math
 
 import numpy as np
 
+from ..presentation.formatting import ordinal
 from .engine import SweepEngine
 from .probes import Impedance
 
@@ -88,7 +89,7 @@ def find_resonances(circuit, probes, response, base) -> tuple[list[dict], list[s
                     warnings.append(
                         f"{probe.text} has a {'parallel' if kind == 'peak' else 'series'}"
                         f" resonance at {f0:.6g} Hz, order {order:.3g}: within 10 % "
-                        f"of the {odd}th harmonic (a bank resonance risk)")
+                        f"of the {ordinal(odd)} harmonic (a bank resonance risk)")
     return out, warnings
 
 
