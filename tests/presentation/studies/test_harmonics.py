@@ -52,3 +52,23 @@ def test_chosen_node_and_element_pick_the_spectra():
     assert "Current spectrum of Vs" in [s["caption"] for s in d["spectra"]]
     _, d = _display(node="nowhere", element="nothing")
     assert d["node"] == "b" and d["element"] == "Cb"   # the PCC, then the capacitor
+
+
+def test_a_source_shows_the_power_it_delivers():
+    import math
+    result, d = _display(element="Vs")
+    powers = _table(d, "ieee1459")
+    vs = next(r for r in powers["rows"] if r[0].startswith("Vs"))
+    cb = next(r for r in powers["rows"] if r[0] == "Cb")
+    q1 = powers["headings"].index("Q1")
+    # textbook: a capacitor takes Q = −ωCV² (−7.299 kvar at 440 V, 60 Hz, 100 µF), and by
+    # the power balance (Tellegen) the source delivers that same Q1: shown with its sign
+    assert cb[q1] == "-7.299 kvar"
+    assert vs[0] == "Vs (delivered)" and vs[q1] == "-7.299 kvar"
+    expected = -2 * math.pi * 60 * 100e-6 * 440 ** 2
+    assert math.isclose(-result["elements"]["Vs"]["ieee1459"]["q1_var"], expected, rel_tol=1e-9)
+    assert "deliver" in powers["note"] and "passive sign" in powers["note"]
+    element = _table(d, "element")
+    assert any(r[0] == "fundamental reactive power delivered Q1" and r[1] == "-7.299 kvar"
+               for r in element["rows"])
+    assert "deliver" in element["note"]

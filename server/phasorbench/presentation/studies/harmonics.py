@@ -10,6 +10,7 @@ from __future__ import annotations
 from ..cautions import HARMONIC_CAUTIONS, HARMONIC_SOURCES, SCOPE_NOTE
 from ..drawing.spectrum import spectrum_svg
 from ..drawing.waveforms import waveform_svg
+from ..display import SOURCE_KINDS
 from ..formatting import MISSING, ROUND_OFF, eng, plain
 
 __all__ = ["MAX_ROWS", "MAX_ORDER_COLUMNS", "chosen", "harmonics_display", "verdict"]
@@ -69,6 +70,26 @@ def _power_floor(result: dict) -> float:
                            default=0.0)
 
 
+#: The signed powers a source shows as delivered (> 0 when it supplies); the other
+#: IEEE 1459 quantities are magnitudes and read the same either way.
+_SIGNED = ("p_w", "p1_w", "ph_w", "q1_var")
+DELIVERED_NOTE = ("sources (independent and controlled) show the power they deliver: P, P1, "
+                  "PH and Q1 > 0 when supplying; every other element the power it takes "
+                  "(the JSON keeps the passive sign)")
+
+
+def _values(e: dict) -> dict:
+    """An element's IEEE 1459 values as shown: a source's signed powers as delivered."""
+    values = {**e["ieee1459"], "v_rms": e["rms_v"], "i_rms": e["rms_i"]}
+    if e.get("kind") in SOURCE_KINDS:
+        values.update({k: -values[k] for k in _SIGNED if values.get(k) is not None})
+    return values
+
+
+def _label(name: str, e: dict) -> str:
+    return f"{name} (delivered)" if e.get("kind") in SOURCE_KINDS else name
+
+
 def _quantity(key: str, values: dict, floor: float) -> str:
     unit = next((r[3] for r in IEEE1459_ROWS if r[0] == key), "")
     if key in ("pf", "pf1"):
@@ -123,22 +144,27 @@ def _ieee1459_table(result: dict) -> dict:
     rows = []
     for name in names:
         e = result["elements"][name]
-        values = {**e["ieee1459"], "v_rms": e["rms_v"], "i_rms": e["rms_i"]}
-        rows.append([name] + [_quantity(k, values, floor) for k in keys])
+        values = _values(e)
+        rows.append([_label(name, e)] + [_quantity(k, values, floor) for k in keys])
+    if any(result["elements"][n].get("kind") in SOURCE_KINDS for n in names):
+        note = "; ".join(filter(None, [DELIVERED_NOTE, note]))
     return _table("ieee1459", "Powers under distortion (IEEE Std 1459-2010, clause 3.2)",
                   ["Element"] + symbols, rows, note=note)
 
 
 def _element_table(result: dict, name: str) -> dict:
     e = result["elements"][name]
-    values = {**e["ieee1459"], "v_rms": e["rms_v"], "i_rms": e["rms_i"]}
+    values = _values(e)
     floor = _power_floor(result)
-    rows = [[f"{label} {symbol}", _quantity(key, values, floor), clause]
+    delivered = " delivered" if e.get("kind") in SOURCE_KINDS else ""
+    rows = [[f"{label}{delivered if key in _SIGNED else ''} {symbol}",
+             _quantity(key, values, floor), clause]
             for key, label, symbol, _unit, clause in IEEE1459_ROWS]
     rows.insert(2, ["current distortion THD_I", _pct(e["thd_i_pct"]), "3.2.1"])
     rows.insert(2, ["voltage distortion THD_V", _pct(e["thd_v_pct"]), "3.2.1"])
     return _table("element", f"{name}: every IEEE 1459 quantity",
-                  ["Quantity", "Value", "Clause"], rows)
+                  ["Quantity", "Value", "Clause"], rows,
+                  note=DELIVERED_NOTE if delivered else "")
 
 
 def _capacitor_table(result: dict) -> dict | None:
