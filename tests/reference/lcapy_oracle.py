@@ -413,27 +413,7 @@ def formula_with_lcapy(circuit: Circuit, query: tuple, timeout: float = SOLVE_TI
         ask = ("transfer", [names.node(x) for x in (*query[1], *query[2])])
     else:
         ask = ("impedance", [names.node(query[1]), names.node(query[2])])
-    load_lcapy()
-    context = multiprocessing.get_context("fork")
-    receiver, sender = context.Pipe(duplex=False)
-    child = context.Process(target=_formula_in_child, args=(lines, ask, sender), daemon=True)
-    child.start()
-    sender.close()
-    try:
-        if not receiver.poll(timeout):
-            raise TimeoutError(f"lcapy took longer than {timeout} s on:\n" + "\n".join(lines))
-        status, payload = receiver.recv()
-    except EOFError:
-        raise RuntimeError("the lcapy child process died without an answer") from None
-    finally:
-        receiver.close()
-        child.join(2.0)
-        if child.is_alive():
-            child.kill()
-            child.join()
-    if status != "ok":
-        raise RuntimeError(payload)
-    return payload
+    return _child_answer(_formula_in_child, (lines, ask), lines, timeout)
 
 
 def _formula_in_child(lines, ask, conn) -> None:
@@ -451,3 +431,123 @@ def _formula_in_child(lines, ask, conn) -> None:
         conn.send(("error", traceback.format_exc() + "\nlcapy lines:\n" + "\n".join(lines)))
     finally:
         conn.close()
+
+
+# --- frequency responses --------------------------------------------------------------
+
+
+def response_with_lcapy(circuit: Circuit, query: tuple, timeout: float = SOLVE_TIMEOUT_S):
+    """lcapy's transfer function or impedance of ``circuit`` with its element values as
+    numbers: a sympy expression in ``s`` alone, solved once, to be evaluated at any
+    frequency (the sweep's reference).
+
+    ``query`` is ``("transfer", (in_p, in_n), (out_p, out_n))`` — V(out)/V(in) with lcapy
+    applying its own input across the pair, so the voltage source there is left out — or
+    ``("impedance", a, b)``. Every other independent source is zeroed (voltage sources
+    written as 0 V, current sources left out), as the sweep's ``Z`` probes zero them.
+    Covers every passive kind, the four controlled sources (a sensed element gets a 0 V
+    source in series, read by lcapy's H and F), couplings (k, or M converted to k) and
+    ideal transformers (a floating part tied to ground as in ``_translate``).
+    """
+    names = _Names()
+    lines: list[str] = []
+    driven = tuple(query[1]) if query[0] == "transfer" else None
+    sensed = {e.sense_element for e in circuit.elements.values() if e.sense_element}
+    sense_source: dict[str, str] = {}
+    inductor_name: dict[str, str] = {}
+    deferred = []
+    for element in circuit.elements.values():
+        kind = element.kind
+        if element.frequency is not None and element.frequency != circuit.frequency:
+            raise NotImplementedError(f"{element.name}: own frequency")
+        if kind == "transformer":
+            if element.name in sensed:
+                raise NotImplementedError(f"{element.name}: a sensed transformer")
+            p1, n1, p2, n2 = (names.node(x) for x in element.nodes)
+            lines.append(f"{names.component('TF')} {p1} {n1} {p2} {n2} "
+                         f"{_real(element.value, element.name)}")
+            continue
+        p, n = element.nodes[0], element.nodes[1]
+        if kind == "voltage" and driven is not None and {p, n} == set(driven):
+            if element.name in sensed:
+                raise NotImplementedError(f"{element.name}: the driven source is sensed")
+            continue
+        if kind == "current":
+            if element.name in sensed:
+                raise NotImplementedError(f"{element.name}: a sensed current source")
+            continue                                  # zeroed: an open circuit
+        p, n = names.node(p), names.node(n)
+        end = n
+        if element.name in sensed:
+            end = names.internal_node()
+            sense_source[element.name] = names.component("V")
+        if kind in _PASSIVE_LETTER:
+            letter = _PASSIVE_LETTER[kind]
+            cpt = names.component(letter)
+            value = _real(element.value, element.name) if letter in "RCL" \
+                else _number(element.value)
+            lines.append(f"{cpt} {p} {end} {value}")
+            if kind == "inductor":
+                inductor_name[element.name] = cpt
+        elif kind == "voltage":
+            lines.append(f"{names.component('V')} {p} {end} 0")
+        elif kind == "vcvs":
+            c, d = (names.node(x) for x in element.sense_nodes)
+            lines.append(f"{names.component('E')} {p} {end} {c} {d} {_number(element.value)}")
+        elif kind == "vccs":                          # lcapy pushes into its first node
+            c, d = (names.node(x) for x in element.sense_nodes)
+            lines.append(f"{names.component('G')} {end} {p} {c} {d} {_number(element.value)}")
+        elif kind in ("ccvs", "cccs"):
+            deferred.append((element, "H" if kind == "ccvs" else "F", p, end))
+        else:
+            raise NotImplementedError(f"{element.name}: kind {kind!r} is not translated")
+        if element.name in sense_source:
+            lines.append(f"{sense_source[element.name]} {end} {n} 0")
+    for element, letter, p, end in deferred:
+        # lcapy's H and F: V(p, n) = gain·I and I(p -> n) = gain·I, I read + to − of
+        # the sense source (as in _translate, held to hand formulas there)
+        lines.append(f"{names.component(letter)} {p} {end} "
+                     f"{sense_source[element.sense_element]} {_number(element.value)}")
+    for coupling in circuit.couplings.values():
+        first, second = coupling.inductors
+        if coupling.k is not None:
+            k = float(coupling.k)
+        else:
+            l1 = complex(circuit.elements[first].value).real
+            l2 = complex(circuit.elements[second].value).real
+            k = float(coupling.m) / math.sqrt(l1 * l2)
+        lines.append(f"{names.component('K')} {inductor_name[first]} "
+                     f"{inductor_name[second]} {k!r}")
+    for node, ref in part_references(circuit).items():
+        if node == ref and ref != GROUND:
+            lines.append(f"{names.component('R')} {names.node(node)} 0 {_TIE_OHM}")
+    if query[0] == "transfer":
+        ask = ("transfer", [names.node(x) for x in (*query[1], *query[2])])
+    else:
+        ask = ("impedance", [names.node(query[1]), names.node(query[2])])
+    return _child_answer(_formula_in_child, (lines, ask), lines, timeout)
+
+
+def _child_answer(target, args, lines, timeout):
+    """``target(*args, conn)`` run in a forked child with a hard ``timeout``."""
+    load_lcapy()
+    context = multiprocessing.get_context("fork")
+    receiver, sender = context.Pipe(duplex=False)
+    child = context.Process(target=target, args=(*args, sender), daemon=True)
+    child.start()
+    sender.close()
+    try:
+        if not receiver.poll(timeout):
+            raise TimeoutError(f"lcapy took longer than {timeout} s on:\n" + "\n".join(lines))
+        status, payload = receiver.recv()
+    except EOFError:
+        raise RuntimeError("the lcapy child process died without an answer") from None
+    finally:
+        receiver.close()
+        child.join(2.0)
+        if child.is_alive():
+            child.kill()
+            child.join()
+    if status != "ok":
+        raise RuntimeError(payload)
+    return payload
