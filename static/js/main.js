@@ -237,12 +237,13 @@ function isElement(name) {
 }
 
 /** A window of the solved circuit's branch or node table, in the order shown. */
-async function fetchRows({table, start, count}) {
+async function fetchRows({table, start, count, expanded = []}) {
   const window = {table, start, count, find: table === "elements" ? state.find : ""};
+  if (table === "elements" && expanded.length) window.expanded = expanded;
   if (table === "elements" && state.sort.key) Object.assign(window, {sort: state.sort.key, direction: state.sort.dir});
   const {ok, data} = await postRows(state.solvedText, window);
   if (!ok) throw new Error(problemText(data));
-  if (table === "elements") showCount(data.total);
+  if (table === "elements") showCount(data.matched ?? data.total);
   return data;
 }
 

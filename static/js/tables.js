@@ -114,6 +114,17 @@ function groupRow(g, columns, folded, open) {
   return cells(tr, g, columns, folded, {sub: g.sub || {}, first: toggle});
 }
 
+/**
+ * An element's row; `block`: the three-phase block it is a phase of (a phase row),
+ * `level`: whether the table is a tree (blocks in it), `hidden`: a closed block's phase.
+ */
+function elementRow(row, columns, folded, {level = false, block = null, hidden = false} = {}) {
+  const tr = block
+    ? el("tr", {class: "phase", dataset: {element: row.name, inGroup: block}, "aria-level": "2", hidden})
+    : el("tr", {dataset: {element: row.name}, "aria-level": level ? "1" : null});
+  return cells(tr, row, columns, folded, {sub: row.sub || {}});
+}
+
 /** The rows a person can reach: visible ones, in order. */
 const visibleRows = (body) => [...body.rows].filter((r) => !r.hidden && (r.dataset.element || r.dataset.group));
 
@@ -139,16 +150,19 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
                     onclick: () => onSort(nextSort(sort, key))}, heading));
   }));
   table.tHead.replaceChildren(head);
-  const hasGroups = (display.groups || []).length > 0 && !display.rows_partial;
+  const hasGroups = (display.groups || []).length > 0;
   table.setAttribute("role", hasGroups ? "treegrid" : "grid");
   wireBody(table, {onSelect, onToggle});
   if (display.rows_partial) {
-    // A big circuit: its rows are on the server, drawn as they scroll into view.
+    // A big circuit: its rows are on the server, drawn as they scroll into view. With
+    // three-phase blocks the server sends the same units as below (a block's row, its
+    // phases under it when open), so the first rows it sent (flat) are not used.
     windowedBody(table, {
       total: display.element_total, columns: columns.length,
-      first: sort && sort.key || find ? [] : display.elements,
-      fetch: (start, count) => fetchRows({table: "elements", start, count}),
-      drawRow: (row) => cells(el("tr", {dataset: {element: row.name}}), row, columns, folded),
+      first: sort && sort.key || find || hasGroups ? [] : display.elements,
+      fetch: (start, count) => fetchRows({table: "elements", start, count, expanded}),
+      drawRow: (row) => row.unit === "block" ? groupRow(row, columns, folded, row.open)
+        : elementRow(row, columns, folded, {level: hasGroups, block: row.unit === "phase" ? row.block : null}),
       afterDraw: () => markSelected(table, selected),
     });
     return;
@@ -177,17 +191,14 @@ export function renderBranchTable(table, display, {selected, sort, onSelect, onS
   for (const unit of units) {
     if (!unit.members) {
       drawn.push(unit.row);
-      body.append(cells(el("tr", {dataset: {element: unit.row.name}, "aria-level": hasGroups ? "1" : null}),
-                        unit.row, columns, folded, {sub: unit.row.sub || {}}));
+      body.append(elementRow(unit.row, columns, folded, {level: hasGroups}));
       continue;
     }
     const isOpen = open.has(unit.row.name);
     body.append(groupRow(unit.row, columns, folded, isOpen));
     for (const row of unit.members) {
       drawn.push(row);
-      const tr = el("tr", {class: "phase", dataset: {element: row.name, inGroup: unit.row.name},
-                           "aria-level": "2", hidden: !isOpen});
-      body.append(cells(tr, row, columns, folded, {sub: row.sub || {}}));
+      body.append(elementRow(row, columns, folded, {level: true, block: unit.row.name, hidden: !isOpen}));
     }
   }
   if (!units.length) body.append(el("tr", {class: "empty"}, el("td", {colspan: columns.length},

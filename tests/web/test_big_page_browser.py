@@ -6,9 +6,10 @@ from __future__ import annotations
 
 import pytest
 
+from phasorbench.presentation import rows
 from phasorbench.web import answers
 
-from .test_big_circuits import ladder
+from .test_big_circuits import blocks_circuit, ladder
 from .test_browser import TIMEOUT_MS, open_page, type_circuit, wait_views
 
 pytestmark = pytest.mark.browser
@@ -79,3 +80,87 @@ def test_a_big_table_is_drawn_a_window_at_a_time(new_page, live_server, artifact
     nodes = page.locator("#node-table tbody tr[data-node]").count()
     assert 0 < nodes < 200                              # of 3,002
     page.screenshot(path=str(artifacts / "workbench-big-table.png"))
+
+
+#: Each drawn row of the branch table: what it is, its name, whether hidden, its tree
+#: level and its cells' text.
+ROWS_JS = """rows => rows.map(r => [r.dataset.group ? "block" : r.dataset.inGroup ? "phase of " +
+  r.dataset.inGroup : "element", r.dataset.group || r.dataset.element, r.hidden,
+  r.getAttribute("aria-level"), [...r.cells].map(c => c.textContent).join("|")])"""
+
+
+def shown_rows(page) -> list:
+    rows_ = page.eval_on_selector_all(
+        "#branch-table tbody tr[data-element], #branch-table tbody tr[data-group]", ROWS_JS)
+    return [r for r in rows_ if not r[2]]
+
+
+def blocks_page(new_page, live_server, text: str, windowed: bool):
+    page = new_page()
+    open_page(page, live_server)
+    paste(page, text)
+    with page.expect_response(lambda r: r.url.endswith("/api/solve"), timeout=60_000):
+        page.keyboard.press("Control+Enter")
+    page.wait_for_selector('#branch-table tr[data-group="L1"]', timeout=60_000)
+    assert page.locator("#branch-table.windowed").count() == (1 if windowed else 0)
+    return page
+
+
+def both(pages, action) -> None:
+    for page in pages:
+        action(page)
+
+
+def test_a_windowed_table_shows_the_blocks_and_phases_the_full_table_shows(
+        new_page, live_server, monkeypatch, artifacts):
+    text = blocks_circuit(200)                   # 1,203 elements, 201 three-phase blocks
+    monkeypatch.setattr(rows, "FULL_ROWS", 100_000)   # every row sent: the full table
+    full = blocks_page(new_page, live_server, text, windowed=False)
+    monkeypatch.undo()
+    assert 1203 > rows.FULL_ROWS
+    win = blocks_page(new_page, live_server, text, windowed=True)
+    pages = (full, win)
+
+    def same(wait_for: str, least: int = 20) -> list:
+        for page in pages:
+            page.wait_for_selector(wait_for, timeout=TIMEOUT_MS)
+        page.wait_for_timeout(200)
+        a, b = shown_rows(full), shown_rows(win)
+        # common practice, no source: the table drawn a window at a time shows the rows,
+        # the grouping (tree levels) and the text of the table drawn whole
+        assert len(b) >= least and b == a[:len(b)]
+        return b
+
+    first = same('#branch-table tr[data-element="Ra1"]')
+    # circuit-language.md, three-phase blocks: the supply G and each load block is one
+    # row, its phases (BLOCK.a …) under it, closed at first
+    assert [r[:2] for r in first[:6]] == [["block", "G"], ["element", "Ra0"], ["element", "Rb0"],
+                                          ["element", "Rc0"], ["block", "L0"], ["element", "Ra1"]]
+    assert first[0][3] == "1" and first[1][3] == "1"
+    # opening a block shows its phases under it, as a second tree level
+    both(pages, lambda p: p.click('#branch-table tr[data-group="L1"]'))
+    opened = same('#branch-table tr.phase[data-element="L1.ca"]:not([hidden])')
+    at = [r[1] for r in opened].index("L1")
+    assert [r[:2] for r in opened[at + 1:at + 4]] == [["phase of L1", "L1.ab"],
+                                                      ["phase of L1", "L1.bc"],
+                                                      ["phase of L1", "L1.ca"]]
+    assert {r[3] for r in opened[at + 1:at + 4]} == {"2"}
+    win.screenshot(path=str(artifacts / "workbench-windowed-blocks.png"))
+    # a find for one phase keeps its whole block; the count says the elements found
+    both(pages, lambda p: p.fill("#branch-find", "l19"))
+    for page in pages:
+        page.wait_for_function(
+            "() => document.getElementById('branch-count').textContent === '33 of 1203'",
+            timeout=TIMEOUT_MS)
+    found = same('#branch-table tr[data-group="L199"]', least=11)
+    assert [r[1] for r in found] == ["L19"] + [f"L{k}" for k in range(190, 200)]
+    # sorted by P, largest first: blocks move as units, the supply's delivered total first
+    both(pages, lambda p: p.fill("#branch-find", ""))
+    for _ in range(2):
+        both(pages, lambda p: p.click('#branch-table th[data-key="p"] button'))
+    for page in pages:
+        page.wait_for_function(
+            "() => { const r = document.querySelector('#branch-table tbody tr[data-group], "
+            "#branch-table tbody tr[data-element]'); return r && r.dataset.group === 'G'; }",
+            timeout=TIMEOUT_MS)
+    same('#branch-table tbody tr[data-group="G"]')

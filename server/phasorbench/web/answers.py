@@ -14,10 +14,10 @@ from ..presentation.tables_out import table_text
 from ..errors import CircuitError, Diagnostic, answer
 from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
-from ..presentation.display import (correction_display, group_detail, port_display, solve_display,
-                      waveform_display)
+from ..presentation.display import (correction_display, group_detail, group_rows, port_display,
+                                    solve_display, waveform_display)
 from ..presentation.rows import table_window
-from .limits import check_size
+from .limits import check_size, element_bound
 from .settings import Settings
 from .solved import SolvedCache
 
@@ -60,7 +60,7 @@ def _solve(text: str) -> dict:
 def _solved(text: str, settings: Settings) -> dict:
     """The contract dict of ``text`` (shared: never change it), solved once per text."""
     check_size(text, settings.max_elements)
-    return SOLVED.get(text, _solve)
+    return SOLVED.get(text, _solve, size=element_bound(text))
 
 
 def solve_answer(text: str, contract: bool, settings: Settings) -> dict:
@@ -81,12 +81,13 @@ def solve_answer(text: str, contract: bool, settings: Settings) -> dict:
 def rows_answer(text: str, window: dict, settings: Settings) -> dict:
     """One window of the branch or node table (``rows.table_window``) of ``text``.
 
-    ``window`` holds ``table``, ``start``, ``count``, ``sort``, ``direction`` and
-    ``find`` as the request gave them.
+    ``window`` holds ``table``, ``start``, ``count``, ``sort``, ``direction``, ``find``
+    and ``expanded`` (the three-phase blocks shown open) as the request gave them.
     """
     result = _solved(text, settings)
     return table_window(result, window["table"], window["start"], window["count"],
-                        window.get("sort"), window.get("direction", 1), window.get("find", ""))
+                        window.get("sort"), window.get("direction", 1), window.get("find", ""),
+                        expanded=window.get("expanded") or (), block_rows=group_rows)
 
 
 def table_answer(text: str, table: str, separator: str, settings: Settings) -> str:

@@ -123,6 +123,10 @@ class SolveBody(CircuitBody):
                                              "out (the page reads the display rows only)")
 
 
+#: Open three-phase blocks one rows request may name (a block has at least three elements).
+MAX_EXPANDED = 20_000
+
+
 class RowsBody(CircuitBody):
     """A circuit text and the window of one of its tables to show."""
 
@@ -134,6 +138,9 @@ class RowsBody(CircuitBody):
     direction: Literal[1, -1] = Field(1, description="1 ascending, -1 descending")
     find: str = Field("", max_length=200, description="keep rows whose name or terminals "
                                                       "contain this text (no case)")
+    expanded: list[Text] = Field([], max_length=MAX_EXPANDED,
+                                 description="three-phase blocks shown open: their phase "
+                                             "rows follow the block's row")
 
 
 class ViewBody(CircuitBody):
@@ -286,8 +293,11 @@ async def solve(body: SolveBody, request: Request):
 
 async def rows(body: RowsBody, request: Request):
     """A window of a solved circuit's branch or node table, sorted and filtered as asked:
-    ``{"table", "total", "start", "rows"}`` (rows as in ``display.elements`` / ``nodes``)."""
-    window = body.model_dump(include={"table", "start", "count", "sort", "direction", "find"})
+    ``{"table", "total", "start", "rows", "matched"}`` (rows as in ``display.elements`` /
+    ``nodes``; in a circuit with three-phase blocks, block rows and, for the blocks in
+    ``expanded``, their phase rows, as ``rows.table_window`` says)."""
+    window = body.model_dump(include={"table", "start", "count", "sort", "direction", "find",
+                                      "expanded"})
     return await run_job(request, answers.rows_answer, body.netlist, window)
 
 

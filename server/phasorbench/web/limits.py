@@ -12,16 +12,16 @@ from ..errors import CircuitError, Diagnostic
 from ..language.parser import count_elements
 
 
-def _upper_bound(text: str) -> int:
-    """At least the number of elements: every element line has a ':', and a block
-    (voltage3, load3) stands for three elements."""
+def element_bound(text: str) -> int:
+    """At least the number of elements, counted cheaply: every element line has a ':',
+    and a block (voltage3, load3) stands for three elements."""
     lower = text.lower()
     return text.count(":") + 2 * (lower.count("voltage3") + lower.count("load3"))
 
 
 def check_size(text: str, max_elements: int) -> None:
     """Raise ``CircuitError`` when ``text`` defines more than ``max_elements`` elements."""
-    if _upper_bound(text) <= max_elements:
+    if element_bound(text) <= max_elements:
         return
     count = count_elements(text)
     if count > max_elements:

@@ -9,7 +9,9 @@ solve it twice.
 
 It is bounded by the number of entries and by the elements they hold together (a
 300×300 mesh's contract alone takes hundreds of megabytes); the newest entry is always
-kept, so the requests that follow a big solve still find it.
+kept, so the requests that follow a big solve still find it. A solve that starts counts
+too: older entries make room before it runs, so a server solving one big circuit after
+another holds one of them at a time, not the last one beside the next.
 """
 
 from __future__ import annotations
@@ -23,9 +25,11 @@ from ..errors import CircuitError
 
 __all__ = ["SolvedCache", "text_key"]
 
-#: Entries kept at most, and elements they may hold together beyond the newest one.
+#: Entries kept at most, and elements they may hold together with the solves under way
+#: (the newest entry is kept beyond it). A contract takes about 2.5 kB per element: the
+#: bound keeps a server within about one big circuit's contract of the command line.
 CACHE_ENTRIES = 8
-CACHE_ELEMENTS = 60_000
+CACHE_ELEMENTS = 30_000
 
 
 def text_key(text: str) -> str:
@@ -50,12 +54,16 @@ class SolvedCache:
         self._lock = threading.Lock()
         self._done: OrderedDict[str, tuple[bool, object, int]] = OrderedDict()
         self._pending: dict[str, Future] = {}
+        self._sizes: dict[str, int] = {}        # elements of the computes under way
         #: Outcomes computed (not found): what a test counts to see one solve per action.
         self.computed = 0
 
-    def get(self, text: str, compute):
+    def get(self, text: str, compute, size: int = 0):
         """``compute(text)``'s result, from the cache when it has it; its
-        ``CircuitError`` raised again when that is what the text gave."""
+        ``CircuitError`` raised again when that is what the text gave.
+
+        ``size``: about how many elements the text holds (made room for before a
+        compute starts)."""
         key = text_key(text)
         with self._lock:
             found = self._done.get(key)
@@ -65,6 +73,8 @@ class SolvedCache:
                 waiting = self._pending.get(key)
                 if waiting is None:
                     mine = self._pending[key] = Future()
+                    self._sizes[key] = size
+                    self._make_room()
         if found is not None:
             return _outcome(found)
         if waiting is not None:
@@ -77,14 +87,16 @@ class SolvedCache:
         except BaseException as exc:           # not kept: the next request tries again
             with self._lock:
                 del self._pending[key]
+                del self._sizes[key]
             mine.set_exception(exc)
             raise
         with self._lock:
             self.computed += 1
             self._done[key] = entry
             self._done.move_to_end(key)
-            self._trim()
             del self._pending[key]
+            del self._sizes[key]
+            self._trim()
         mine.set_result(entry)
         return _outcome(entry)
 
@@ -92,6 +104,13 @@ class SolvedCache:
         while len(self._done) > self.entries or (
                 len(self._done) > 1 and
                 sum(size for _ok, _value, size in self._done.values()) > self.elements):
+            self._done.popitem(last=False)
+
+    def _make_room(self) -> None:
+        """Drop the oldest entries until they and the computes under way fit the bound."""
+        coming = sum(self._sizes.values())
+        while self._done and (
+                sum(size for _ok, _value, size in self._done.values()) + coming > self.elements):
             self._done.popitem(last=False)
 
     def clear(self) -> None:
