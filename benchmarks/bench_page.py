@@ -73,16 +73,23 @@ def start_server(max_elements: int):
     return proc, f"http://127.0.0.1:{port}/"
 
 
+def stage(what: str) -> None:
+    """Where the run is (standard error), so a slow step on a busy machine is seen."""
+    print(f"  [{time.strftime('%H:%M:%S')}] {what}", file=sys.stderr, flush=True)
+
+
 def measure(browser, url: str, text: str, keys: int) -> dict:
     context = browser.new_context(viewport={"width": 1366, "height": 768})
     page = context.new_page()
     page.add_init_script(OBSERVE)
+    stage("opening the page")
     page.goto(url)
     page.wait_for_selector("body[data-ready=true]", timeout=60_000)
     # pasted as one input event (Playwright's fill goes through the browser's editing
     # machinery, which takes minutes over megabytes)
     page.eval_on_selector("#editor-text", "(t, text) => { t.value = text; "
                           "t.dispatchEvent(new Event('input', {bubbles: true})); }", text)
+    stage("pasted")
     page.wait_for_timeout(800)                     # the typing's check has gone out
     seen: list[str] = []
     page.on("request", lambda r: seen.append(r.url.split("/api/", 1)[1]) if "/api/" in r.url else None)
@@ -91,8 +98,10 @@ def measure(browser, url: str, text: str, keys: int) -> dict:
     with page.expect_response(lambda r: r.url.endswith("/api/solve"), timeout=600_000) as answer:
         page.keyboard.press("Control+Enter")
     answered = page.evaluate("performance.now()")
+    stage("answered")
     page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=600_000)
     drawn = page.evaluate("performance.now()")
+    stage("table drawn")
     page.wait_for_selector("#waveform-drawing svg polyline", timeout=600_000)
     page.wait_for_timeout(1500)
     tasks = page.evaluate("window.__longtasks")
@@ -100,6 +109,8 @@ def measure(browser, url: str, text: str, keys: int) -> dict:
     dom = page.evaluate("document.getElementsByTagName('*').length")
     options = page.evaluate("document.getElementsByTagName('option').length")
     size = len(answer.value.body())
+    stage("views drawn")
+    action = list(seen)                            # the requests of the one action
     # typing: keys at the end of the text, each timed from keydown to the next frame
     page.evaluate("""() => { const t = document.getElementById('editor-text');
                      t.focus(); t.setSelectionRange(t.value.length, t.value.length); }""")
@@ -109,10 +120,11 @@ def measure(browser, url: str, text: str, keys: int) -> dict:
           requestAnimationFrame(() => setTimeout(() => window.__keys.push(performance.now() - t0), 0));
         }); }""")
     for k in range(keys):
-        page.keyboard.type("x" if k % 2 == 0 else "\b")
+        page.keyboard.press("x" if k % 2 == 0 else "Backspace")
         page.wait_for_timeout(60)
     page.wait_for_timeout(500)
     per_key = page.evaluate("window.__keys")
+    stage("typed")
     # scrolling to the end of the branch table
     scroll_start = page.evaluate("""() => { const w = document.querySelector('#branch-table').closest('.table-wrap');
                                     w.scrollTop = w.scrollHeight; return performance.now(); }""")
@@ -126,7 +138,7 @@ def measure(browser, url: str, text: str, keys: int) -> dict:
             "key_ms": sorted(per_key)[len(per_key) // 2] if per_key else float("nan"),
             "key_max_ms": max(per_key, default=float("nan")),
             "dom": dom, "options": options, "answer_mb": size / 1e6, "scroll_s": scrolled / 1000,
-            "requests": seen}
+            "requests": action}
 
 
 def main() -> int:

@@ -42,7 +42,9 @@ async function postJSON(path, body, signal) {
 }
 
 export const postCheck = (netlist, signal) => postJSON("/api/check", {netlist}, signal);
-export const postSolve = (netlist, signal) => postJSON("/api/solve", {netlist, contract: false}, signal);
+/** `names`: elements the page shows; the answer's display.present lists those the circuit has. */
+export const postSolve = (netlist, signal, names = []) =>
+  postJSON("/api/solve", {netlist, contract: false, ...(names.length ? {names} : {})}, signal);
 /** `window`: {table, start, count, sort, direction, find} (see /docs). */
 export const postRows = (netlist, window, signal) => postJSON("/api/rows", {netlist, ...window}, signal);
 export const postPhasors = (netlist, elements, size, signal) =>

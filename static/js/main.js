@@ -23,6 +23,7 @@ import {clearViews, renderPicker, showPhasors, showWaveform} from "./views.js";
 
 const CHECK_DELAY_MS = 350;
 const FIND_DELAY_MS = 200;
+const MAX_ASKED = 100;        // element names one solve may ask about (POST /api/solve's bound)
 const SOURCE_KINDS = new Set(["voltage", "current", "vcvs", "vccs", "ccvs", "cccs"]);
 const $ = (id) => document.getElementById(id);
 
@@ -167,7 +168,8 @@ async function solve() {
   const {signal, seq} = abortable("solve");
   $("solve").disabled = true;
   try {
-    const {ok, status, data} = await postSolve(text, signal);
+    const asked = [state.selected, ...state.shown].filter(Boolean).slice(0, MAX_ASKED);
+    const {ok, status, data} = await postSolve(text, signal, asked);
     if (seq !== state.seq.solve) return;
     state.failure = ok ? null : {server: serverFault(status), text: problemText(data)};
     if (ok) {
@@ -230,6 +232,12 @@ function elementNames() {
   return state.answer ? state.answer.display.elements.map((r) => r.name) : [];
 }
 
+/** Whether the solve said `name` is an element: among its rows, or among the names it was asked about. */
+function known(name) {
+  const display = state.answer && state.answer.display;
+  return Boolean(display && name) && (elementNames().includes(name) || (display.present || []).includes(name));
+}
+
 /** Whether `name` is an element of the circuit on screen (a big one's rows are not all here). */
 function isElement(name) {
   if (!state.answer || !name) return false;
@@ -265,12 +273,12 @@ function drawBranchTable() {
 function renderResults() {
   const display = state.answer.display;
   const names = elementNames();
-  if (!names.includes(state.selected) && !(display.rows_partial && state.selected)) {
+  if (!known(state.selected)) {
     // Start on the first element that is not a source: its waveform tells more.
     const first = display.elements.find((r) => !SOURCE_KINDS.has(r.kind));
     state.selected = first ? first.name : names[0] || null;
   }
-  state.shown = state.shown.filter((n) => isElement(n) && n !== state.selected);
+  state.shown = state.shown.filter((n) => known(n) && n !== state.selected);
   const blocks = (display.groups || []).map((g) => g.name);
   $("blocks-csv").hidden = $("blocks-copy").hidden = blocks.length === 0;
   state.expanded = state.expanded.filter((n) => blocks.includes(n));

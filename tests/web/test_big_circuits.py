@@ -203,3 +203,15 @@ def test_windows_of_a_circuit_with_blocks_keep_each_block_with_its_phases(make_a
     assert top[0]["name"] == "G" and [r["name"] for r in top[1:4]] == ["G.a", "G.b", "G.c"]
     assert top[0]["values"]["p_w"] == pytest.approx(sum(r["values"]["p_w"] for r in top[1:4]),
                                                     rel=1e-9)
+
+
+def test_solve_says_which_asked_names_are_elements(make_api):
+    api = make_api(max_elements=5000)
+    body = api.post("/api/solve", json={"netlist": BIG, "contract": False,
+                                        "names": ["C599", "Rcable", "C599", "n3"]}).json()
+    # common practice, no source: C599 is the ladder's last capacitor (beyond the rows
+    # sent); a name the circuit lacks and a node are not elements, a repeat is said once
+    assert body["display"]["present"] == ["C599"]
+    assert "C599" not in [r["name"] for r in body["display"]["elements"]]
+    too_many = api.post("/api/solve", json={"netlist": BIG, "names": ["R1"] * 101})
+    assert too_many.status_code == 422

@@ -63,11 +63,13 @@ def _solved(text: str, settings: Settings) -> dict:
     return SOLVED.get(text, _solve, size=element_bound(text))
 
 
-def solve_answer(text: str, contract: bool, settings: Settings) -> dict:
+def solve_answer(text: str, contract: bool, names: list[str], settings: Settings) -> dict:
     """The contract dict of ``text`` with a ``display`` field of formatted strings.
 
     Without ``contract`` the per-element and per-node maps are left out: the answer the
-    page reads, no bigger than what it shows.
+    page reads, no bigger than what it shows. ``display.present`` lists the ``names``
+    that are elements of the circuit (a big circuit's answer has only its first rows, so
+    the page learns this way whether the element it shows is still there).
     """
     result = _solved(text, settings)
     if contract:
@@ -75,6 +77,8 @@ def solve_answer(text: str, contract: bool, settings: Settings) -> dict:
     else:
         answer = {k: v for k, v in result.items() if k not in _BULK_FIELDS}
     answer["display"] = solve_display(result)
+    elements = result["elements"]
+    answer["display"]["present"] = [n for n in dict.fromkeys(names) if n in elements]
     return answer
 
 

@@ -116,11 +116,18 @@ ERROR_RESPONSES = {
 }
 
 
+#: Element names one solve request may ask about (``SolveBody.names``).
+MAX_ASKED = 100
+
+
 class SolveBody(CircuitBody):
     """A circuit text, and whether the answer carries the whole results contract."""
 
     contract: bool = Field(True, description="false: leave the per-element and per-node maps "
                                              "out (the page reads the display rows only)")
+    names: list[Text] = Field([], max_length=MAX_ASKED,
+                              description="element names the page shows (its selection): "
+                                          "display.present lists those the circuit has")
 
 
 #: Open three-phase blocks one rows request may name (a block has at least three elements).
@@ -288,7 +295,7 @@ async def solve(body: SolveBody, request: Request):
     ``display`` (``rows_partial`` true); ``POST /api/rows`` gives the others.
     422 ``{"errors": [...], "warnings": [...]}`` when the circuit has errors.
     """
-    return await run_job(request, answers.solve_answer, body.netlist, body.contract)
+    return await run_job(request, answers.solve_answer, body.netlist, body.contract, body.names)
 
 
 async def rows(body: RowsBody, request: Request):
