@@ -2,8 +2,15 @@
 // that marks the lines the checker complains about, with the message at the line's end.
 //
 // The backdrop sits under the transparent textarea with the same font and line
-// height; only marked lines carry text (to place the wavy underline and the note),
-// so a long circuit stays cheap to redraw.
+// height; only marked lines carry text (to place the wavy underline), so a long
+// circuit stays cheap to redraw.
+//
+// Over the textarea lies a layer that scrolls only vertically with the text, drawn
+// for the lines in view: a mark at the right edge of every line cut off by the
+// editor's width (the text goes on past the edge: scroll sideways to read it), and
+// the notes of marked lines. A note that fits after its line's text stands there on
+// one line; one that does not is a short mark at the right edge, and while the caret
+// is on its line the note opens whole, wrapped, in a box under the line.
 
 import {el} from "./dom.js";
 
@@ -12,6 +19,12 @@ const MARK = {error: "✖", warning: "▲"};
 const UNDOABLE_CHARS = 100_000;
 
 export function createEditor({textarea, gutter, backdrop}) {
+  const overlay = el("div", {class: "overlay", "aria-hidden": "true"});
+  const overLines = el("div", {class: "lines"});
+  overlay.append(overLines);
+  textarea.parentElement.append(overlay);
+  const probe = el("span", {class: "measure", "aria-hidden": "true"}, "0".repeat(40));
+  textarea.parentElement.append(probe);
   // Line numbers are one text node; marks are a few absolutely placed rows over it
   // and over the backdrop, so typing in a 5000-line circuit stays quick.
   const numbers = el("div", {class: "numbers"});
@@ -70,10 +83,84 @@ export function createEditor({textarea, gutter, backdrop}) {
     } else {
       node.append(text);
     }
+    return node;
+  }
+
+  function noteText(list) {
+    const first = list[0];
     const more = list.length > 1 ? ` (+${list.length - 1} more)` : "";
     const hint = first.hint ? ` — hint: ${first.hint}` : "";
-    node.append(el("span", {class: "note"}, `${MARK[severity]} ${first.message}${hint}${more}`));
-    return node;
+    return `${MARK[severityOf(list)]} ${first.message}${hint}${more}`;
+  }
+
+  /** Width of a line's text in pixels (tabs to the next stop of four). */
+  function textWidth(text, charWidth) {
+    if (!text.includes("\t")) return text.length * charWidth;
+    let columns = 0;
+    for (const ch of text) columns = ch === "\t" ? (Math.floor(columns / 4) + 1) * 4 : columns + 1;
+    return columns * charWidth;
+  }
+
+  function caretLine() {
+    if (document.activeElement !== textarea) return 0;
+    const before = textarea.value.slice(0, textarea.selectionStart);
+    let count = 1;
+    for (let i = before.indexOf("\n"); i !== -1; i = before.indexOf("\n", i + 1)) count++;
+    return count;
+  }
+
+  /** The cut-off marks and the notes of the lines in view (see the head of the file). */
+  function renderOverlay(all, marks) {
+    const style = getComputedStyle(textarea);
+    const lineHeight = parseFloat(style.lineHeight) || 20;
+    const padTop = parseFloat(style.paddingTop) || 0;
+    const padLeft = parseFloat(style.paddingLeft) || 0;
+    const charWidth = probe.getBoundingClientRect().width / 40 || 8;
+    const view = textarea.clientWidth;
+    const x = textarea.scrollLeft;
+    const first = Math.max(1, Math.floor((textarea.scrollTop - padTop) / lineHeight) + 1);
+    const last = Math.min(all.length, first + Math.ceil(textarea.clientHeight / lineHeight) + 1);
+    const caret = caretLine();
+    const nodes = [];
+    const top = (line) => `${padTop + (line - 1) * lineHeight}px`;
+    for (let line = first; line <= last; line++) {
+      const end = padLeft + textWidth(all[line - 1], charWidth) - x;
+      const list = marks.get(line);
+      if (!list) {
+        if (end > view + 1) nodes.push(el("div", {class: "cut", style: `top: ${top(line)}`, dataset: {line}}, "▸"));
+        continue;
+      }
+      const severity = severityOf(list);
+      const text = noteText(list);
+      const note = el("div", {class: `note ${severity}`, style: `top: ${top(line)}`, dataset: {line}}, text);
+      overLines.append(note);
+      const start = Math.max(end, padLeft) + 2 * charWidth;
+      const fits = end <= view && start + note.offsetWidth <= view - 4;
+      note.remove();
+      if (fits) {
+        note.style.left = `${start}px`;
+        nodes.push(note);
+        continue;
+      }
+      nodes.push(el("div", {class: `cut ${severity}`, style: `top: ${top(line)}`, dataset: {line},
+                            title: text}, `${MARK[severity]} note`));
+      if (line === caret) {
+        nodes.push(el("div", {class: `note open ${severity}`, role: "note", dataset: {line},
+                              style: `top: ${padTop + line * lineHeight}px`}, text));
+      }
+    }
+    overlay.style.width = `${view}px`;
+    overlay.style.height = `${textarea.clientHeight}px`;
+    overLines.replaceChildren(...nodes);
+    // An open note near the foot of the editor opens above its line instead.
+    const open = overLines.querySelector(".note.open");
+    if (open) {
+      const line = Number(open.dataset.line);
+      const below = padTop + line * lineHeight - textarea.scrollTop;
+      if (below + open.offsetHeight > textarea.clientHeight && below - lineHeight - open.offsetHeight >= 0) {
+        open.style.top = `${padTop + (line - 1) * lineHeight - open.offsetHeight}px`;
+      }
+    }
   }
 
   function render() {
@@ -86,11 +173,31 @@ export function createEditor({textarea, gutter, backdrop}) {
     backLines.style.height = `calc(${all.length} * var(--line))`;
     syncScroll();
   }
+  let overlayQueued = false;
+  function queueOverlay() {
+    if (overlayQueued) return;
+    overlayQueued = true;
+    requestAnimationFrame(() => {
+      overlayQueued = false;
+      renderOverlay(lines(), byLine());
+    });
+  }
+  let caretSeen = 0;
+  function caretMoved() {
+    const line = caretLine();
+    if (line !== caretSeen) {
+      caretSeen = line;
+      queueOverlay();
+    }
+  }
   function syncScroll() {
     const y = textarea.scrollTop;
     const x = textarea.scrollLeft;
     gutterLines.style.transform = `translateY(${-y}px)`;
     backLines.style.transform = `translate(${-x}px, ${-y}px)`;
+    overLines.style.transform = `translateY(${-y}px)`;
+    overlay.classList.toggle("scrolled", x > 0);
+    queueOverlay();
   }
 
   /** Put the caret at (line, column), both from 1, and bring the line into view. */
@@ -126,6 +233,9 @@ export function createEditor({textarea, gutter, backdrop}) {
 
   textarea.addEventListener("scroll", syncScroll);
   textarea.addEventListener("input", render);
+  document.addEventListener("selectionchange", caretMoved);
+  textarea.addEventListener("focus", caretMoved);
+  textarea.addEventListener("blur", caretMoved);
   new ResizeObserver(syncScroll).observe(textarea);
   render();
 
