@@ -120,7 +120,7 @@ export function createEditor({textarea, gutter, backdrop}) {
     const x = textarea.scrollLeft;
     const first = Math.max(1, Math.floor((textarea.scrollTop - padTop) / lineHeight) + 1);
     const last = Math.min(all.length, first + Math.ceil(textarea.clientHeight / lineHeight) + 1);
-    const caret = caretLine();
+    const caret = marks.size ? caretLine() : 0;
     const nodes = [];
     const top = (line) => `${padTop + (line - 1) * lineHeight}px`;
     for (let line = first; line <= last; line++) {
@@ -166,6 +166,7 @@ export function createEditor({textarea, gutter, backdrop}) {
   function render() {
     const all = lines();
     const marks = byLine();
+    shown = {all, marks};
     renderGutter(all.length, marks);
     backLines.replaceChildren(...[...marks].filter(([line]) => line <= all.length)
       .map(([line, list]) => markedLine(all[line - 1], list)));
@@ -173,17 +174,20 @@ export function createEditor({textarea, gutter, backdrop}) {
     backLines.style.height = `calc(${all.length} * var(--line))`;
     syncScroll();
   }
+  // The lines and marks of the last render, reused while scrolling and moving the caret.
+  let shown = {all: [], marks: new Map()};
   let overlayQueued = false;
   function queueOverlay() {
     if (overlayQueued) return;
     overlayQueued = true;
     requestAnimationFrame(() => {
       overlayQueued = false;
-      renderOverlay(lines(), byLine());
+      renderOverlay(shown.all, shown.marks);
     });
   }
   let caretSeen = 0;
   function caretMoved() {
+    if (!shown.marks.size) return;
     const line = caretLine();
     if (line !== caretSeen) {
       caretSeen = line;
