@@ -17,6 +17,10 @@ import {el} from "./dom.js";
 const MARK = {error: "✖", warning: "▲"};
 // Texts up to this size replace the editor's text as an undoable edit.
 const UNDOABLE_CHARS = 100_000;
+// Line numbers drawn beyond each edge of the view: the gutter holds a window of them,
+// not one per line of a 30,000-line circuit (painting those took a third of a second
+// every time anything on the page changed).
+const NUMBER_MARGIN = 200;
 
 export function createEditor({textarea, gutter, backdrop}) {
   const overlay = el("div", {class: "overlay", "aria-hidden": "true"});
@@ -35,6 +39,8 @@ export function createEditor({textarea, gutter, backdrop}) {
   backdrop.replaceChildren(backLines);
   let diagnostics = [];
   let lineCount = 0;
+  let numbersFrom = 0;
+  let numbersTo = -1;
 
   function lines() {
     return textarea.value.split("\n");
@@ -58,12 +64,30 @@ export function createEditor({textarea, gutter, backdrop}) {
   const severityOf = (list) => (list[0].severity === "warning" ? "warning" : "error");
   const topOf = (line) => `calc(${line - 1} * var(--line))`;
 
+  const lineHeight = () => parseFloat(getComputedStyle(textarea).lineHeight) || 20;
+
+  /** The line numbers around the view (all of them when `force` or the count changed). */
+  function drawNumbers(force = false) {
+    const h = lineHeight();
+    const first = Math.floor(textarea.scrollTop / h);
+    const last = first + Math.ceil((textarea.clientHeight || 600) / h) + 1;
+    if (!force && first >= numbersFrom && Math.min(last, lineCount) <= numbersTo) return;
+    const from = Math.max(0, first - NUMBER_MARGIN);
+    const to = Math.min(lineCount, last + NUMBER_MARGIN);
+    let text = "";
+    for (let i = from + 1; i <= to; i++) text += i + "\n";
+    numbers.textContent = text;
+    numbers.style.top = `calc(${from} * var(--line))`;
+    numbers.style.minWidth = `${String(lineCount).length}ch`;
+    numbersFrom = from;
+    numbersTo = to;
+  }
+
   function renderGutter(count, marks) {
     if (count !== lineCount) {
-      let text = "";
-      for (let i = 1; i <= count; i++) text += i + "\n";
-      numbers.textContent = text;
       lineCount = count;
+      gutterLines.style.height = `calc(${count} * var(--line))`;
+      drawNumbers(true);
     }
     gutterMarks.replaceChildren(...[...marks].filter(([line]) => line <= count).map(([line, list]) =>
       el("div", {class: severityOf(list), style: `top: ${topOf(line)}`, dataset: {line},
@@ -202,6 +226,7 @@ export function createEditor({textarea, gutter, backdrop}) {
     overLines.style.transform = `translateY(${-y}px)`;
     overlay.classList.toggle("scrolled", x > 0);
     queueOverlay();
+    drawNumbers();
   }
 
   /** Put the caret at (line, column), both from 1, and bring the line into view. */
@@ -212,9 +237,9 @@ export function createEditor({textarea, gutter, backdrop}) {
     offset += Math.max(0, (column || 1) - 1);
     textarea.focus();
     textarea.setSelectionRange(offset, offset);
-    const lineHeight = parseFloat(getComputedStyle(textarea).lineHeight) || 20;
-    const top = (line - 1) * lineHeight;
-    if (top < textarea.scrollTop || top > textarea.scrollTop + textarea.clientHeight - 2 * lineHeight) {
+    const h = lineHeight();
+    const top = (line - 1) * h;
+    if (top < textarea.scrollTop || top > textarea.scrollTop + textarea.clientHeight - 2 * h) {
       textarea.scrollTop = Math.max(0, top - textarea.clientHeight / 3);
     }
     syncScroll();

@@ -164,3 +164,39 @@ def test_a_windowed_table_shows_the_blocks_and_phases_the_full_table_shows(
             "#branch-table tbody tr[data-element]'); return r && r.dataset.group === 'G'; }",
             timeout=TIMEOUT_MS)
     same('#branch-table tbody tr[data-group="G"]')
+
+
+#: Where the gutter draws line number ``line`` and where the textarea draws that line
+#: (page y of each top edge), and the numbers the gutter holds.
+GUTTER_JS = """line => {
+  const t = document.getElementById("editor-text");
+  const numbers = document.querySelector("#gutter .numbers");
+  const h = parseFloat(getComputedStyle(t).lineHeight);
+  const shown = numbers.textContent.trim().split("\\n").map(Number);
+  const pad = (node) => parseFloat(getComputedStyle(node).paddingTop) || 0;
+  const gutterY = numbers.getBoundingClientRect().top + pad(numbers) + (line - shown[0]) * h;
+  const textY = t.getBoundingClientRect().top + pad(t) + (line - 1) * h - t.scrollTop;
+  return {gutterY, textY, first: shown[0], last: shown[shown.length - 1], count: shown.length};
+}"""
+
+
+def test_the_gutter_numbers_the_lines_in_view_of_a_long_circuit(new_page, live_server):
+    page = new_page()
+    open_page(page, live_server)
+    text = ladder(3000)
+    paste(page, text)
+    # 6,003 lines of text and the empty line after its last newline, where the caret
+    # can stand (common practice, no source: every editor numbers that line too)
+    lines = len(text.splitlines()) + 1
+    for line in (5001, lines):
+        page.evaluate("line => { const t = document.getElementById('editor-text');"
+                      " t.scrollTop = (line - 1) * parseFloat(getComputedStyle(t).lineHeight); }",
+                      line)
+        page.wait_for_timeout(300)                   # the scroll event has run
+        at = page.evaluate(GUTTER_JS, line)
+        # common practice, no source: the number beside a line is that line's, level
+        # with it; the gutter holds the numbers around the view, not all 6,004
+        assert at["first"] <= line <= at["last"]
+        assert abs(at["gutterY"] - at["textY"]) < 1.0
+        assert at["count"] < 1000
+    assert at["last"] == lines
