@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import html as markup
 import json
 import os
 import subprocess
@@ -260,3 +261,49 @@ def test_help_says_links_are_refused(capsys):
     with pytest.raises(SystemExit):
         main(["sheet", "--help"])
     assert "symbolic link" in capsys.readouterr().out
+
+
+#: check-values C5: series RLC, f0 = 7957.75 Hz, Q = 25.
+RLC_SWEPT = """title Series RLC
+frequency 50 Hz
+sweep 1 kHz to 50 kHz, 101 points
+Vs: voltage a -> 0 20 V
+R1: resistor a -> b 2 ohm
+L1: inductor b -> c 1 mH
+C1: capacitor c -> 0 0.4 uF
+"""
+
+
+def test_sweep_adds_the_frequency_response_section(tmp_path, capsys):
+    path = tmp_path / "rlc.circuit"
+    path.write_text(RLC_SWEPT, encoding="utf-8")
+    out = tmp_path / "s.html"
+    status, _, err = run(["sheet", str(path), "--sweep", "I(R1)", "--sweep", "V(c)",
+                          "-o", str(out)], capsys)
+    assert status == 0, err
+    html = markup.unescape(out.read_text(encoding="utf-8"))
+    assert '<section id="sweep"' in html and html.count('class="pb-curve"') == 2
+    # the circuit's sweep line is the default range (circuit-language.md)
+    assert "the circuit's sweep line (line 3)" in html and "101, log spacing" in html
+    # check-values C5: the current peaks at f0 = 7957.75 Hz
+    assert "7.95775 kHz" in html
+    # the command line overrides it (studies.md)
+    status, _, _ = run(["sheet", str(path), "--sweep", "I(R1)", "--from", "5k", "--to",
+                        "10 kHz", "--points", "11", "--linear", "-o", str(out)], capsys)
+    html = markup.unescape(out.read_text(encoding="utf-8"))
+    assert status == 0 and "5 kHz to 10 kHz" in html and "11, linear spacing" in html
+    assert "as asked for" in html
+
+
+def test_sweep_bad_input_exits_2_with_a_caret(tmp_path, capsys):
+    path = tmp_path / "rlc.circuit"
+    path.write_text(RLC_SWEPT, encoding="utf-8")
+    out = tmp_path / "s.html"
+    status, _, err = run(["sheet", str(path), "--sweep", "I(R2)", "--from", "9k", "--to",
+                          "3k", "-o", str(out)], capsys)
+    # studies.md: column inside the probe, did-you-mean, every problem in one pass
+    assert status == 2 and "--probe:3: error" in err and "did you mean 'R1'" in err
+    assert "must be below TO" in err and "Traceback" not in err and not out.exists()
+    status, _, err = run(["sheet", str(path), "--points", "10", "-o", str(out)], capsys)
+    # common practice, no source: a sweep setting without a probe is refused, not ignored
+    assert status == 2 and "give --sweep PROBE too" in err

@@ -138,3 +138,45 @@ def test_bank_correction_reads_as_the_page_panel(api):
     for unit in panel.json()["display"]["capacitors"]:
         assert unit["name"] in shown
     assert len(panel.json()["display"]["capacitors"]) == 3
+
+
+RLC_SWEPT = """title Series RLC
+frequency 50 Hz
+sweep 1 kHz to 50 kHz, 101 points
+Vs: voltage a -> 0 20 V
+R1: resistor a -> b 2 ohm
+L1: inductor b -> c 1 mH
+C1: capacitor c -> 0 0.4 uF
+"""
+
+
+def test_sweep_section_as_the_command_line_writes_it(api, tmp_path, capsys):
+    # common practice, no source: one sheet for one request, by either door
+    path = tmp_path / "rlc.circuit"
+    path.write_text(RLC_SWEPT, encoding="utf-8")
+    out = tmp_path / "s.html"
+    assert main(["sheet", str(path), "--sweep", "I(R1)", "--from", "2k", "--to", "20k",
+                 "--points", "51", "-o", str(out)]) == 0
+    capsys.readouterr()
+    r = api.post("/api/sheet", json={"netlist": RLC_SWEPT, "sweep": {
+        "probes": ["I(R1)"], "from": 2000.0, "to": 20000.0, "points": 51}})
+    assert r.status_code == 200
+    assert STAMP.sub("", r.text) == STAMP.sub("", out.read_text(encoding="utf-8"))
+    # check-values C5: f0 = 7957.75 Hz, Q = 25
+    assert "7.95775 kHz" in r.text and ">25<" in r.text
+
+
+def test_sweep_section_bad_input_is_422_in_the_error_shape(api):
+    r = api.post("/api/sheet", json={"netlist": RLC_SWEPT, "sweep": {"probes": ["V(cc)"]}})
+    # studies.md: HTTP 422 with the language's error shape, the column in the probe
+    assert r.status_code == 422
+    (error,) = r.json()["errors"]
+    assert error["column"] == 3 and "did you mean 'c'" in error["hint"]
+    r = api.post("/api/sheet", json={"netlist": RLC_SWEPT, "sweep": {"probes": []}})
+    assert r.status_code == 422 and "errors" in r.json()
+    big = "frequency 50 Hz\nVs: voltage n0 -> 0 1 V\n" + "".join(
+        f"R{k}: resistor n{k} -> n{k + 1} 1 ohm\n" for k in range(60))
+    r = api.post("/api/sheet", json={"netlist": big, "sweep": {"probes": ["V(n5)"],
+                                                               "points": 100000}})
+    # common practice, no source: the sweep's work bound holds for the sheet too
+    assert r.status_code == 422 and "points × unknowns" in r.json()["errors"][0]["message"]

@@ -187,3 +187,38 @@ def test_hundred_thousand_points_stay_light(new_page, live_server, artifacts):
     index = int(page.get_attribute("#sweep-readout", "data-index"))
     assert index == 99999
     page.locator("#tool-sweep").screenshot(path=str(artifacts / "sweep-100k.png"))
+
+
+#: check-values C5 with the file's own sweep line (circuit-language.md).
+RLC_SWEPT = RLC.replace("frequency 50 Hz\n", "frequency 50 Hz\nsweep 1 kHz to 50 kHz, 201 points\n")
+
+
+def test_export_carries_the_frequency_response_section(new_page, live_server, artifacts,
+                                                        tmp_path):
+    page = new_page(1366, 900)
+    open_sweep(page, live_server, RLC_SWEPT)
+    # the empty range fields show the circuit's sweep line as their placeholders
+    assert page.get_attribute("#sweep-from", "placeholder") == "1000"
+    assert page.get_attribute("#sweep-to", "placeholder") == "50000"
+    assert page.get_attribute("#sweep-points", "placeholder") == "201"
+    pick_only(page, ["I(R1)"])
+    with page.expect_response(lambda r: r.url.endswith("/api/sweep")):
+        page.click("#sweep-form button[type=submit]")
+    page.wait_for_selector("#sweep-drawing svg.pb-response", timeout=TIMEOUT_MS)
+    with page.expect_request(lambda r: r.url.endswith("/api/sheet")) as asked:
+        with page.expect_download(timeout=TIMEOUT_MS) as info:
+            page.click("#export-sheet")
+    sent = asked.value.post_data_json
+    assert sent["sweep"]["probes"] == ["I(R1)"] and sent["sweep"]["magnitude"] == "units"
+    target = tmp_path / "sheet.html"
+    info.value.save_as(target)
+    html = target.read_text(encoding="utf-8")
+    assert '<section id="sweep"' in html and html.count('class="pb-response"') == 1
+    # check-values C5: the current peaks at f0 = 7957.75 Hz with Q = 25
+    assert "7.95775 kHz" in html and ">25<" in html
+    # the range came from the circuit's sweep line (line 3)
+    assert "sweep line (line 3)" in html.replace("&#39;", "'")
+    assert "single-frequency solve" in html and "Harmonic resonance" in html
+    sheet = new_page(1000, 1400)
+    sheet.goto(target.as_uri())
+    sheet.locator("#sweep").screenshot(path=str(artifacts / "sheet-sweep-section.png"))

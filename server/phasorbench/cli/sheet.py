@@ -13,7 +13,7 @@ import sys
 
 from ..errors import CircuitError, Diagnostic
 from .common import EXIT_INPUT, EXIT_OK, load_source, print_study_diagnostics, print_warnings
-from .output import voltage_argument, write_output
+from .output import frequency_argument, voltage_argument, write_output
 
 
 __all__ = ["add_sheet_command", "command_sheet"]
@@ -77,6 +77,21 @@ def add_sheet_command(commands) -> None:
                        help="the PCC's nominal voltage (the IEEE 519 row)")
     sheet.add_argument("--rated", nargs=2, action="append", metavar=("ELEMENT", "VOLTS"),
                        help="a capacitor's rated rms voltage, for its IEEE 18 duty")
+    sheet.add_argument("--sweep", action="append", metavar="P", dest="sweep_probes",
+                       help="add the frequency response of probe P (repeatable; the study "
+                            "of phasorbench sweep)")
+    sheet.add_argument("--from", dest="sweep_from", type=frequency_argument, metavar="F",
+                       help="lowest frequency of the sweep (default: the circuit's sweep "
+                            "line, else two decades below frequency)")
+    sheet.add_argument("--to", dest="sweep_to", type=frequency_argument, metavar="F",
+                       help="highest frequency of the sweep")
+    sheet.add_argument("--points", dest="sweep_points", type=int, metavar="N",
+                       help="points of the sweep (2 to 100,000; default 200)")
+    spacing = sheet.add_mutually_exclusive_group()
+    spacing.add_argument("--log", dest="sweep_spacing", action="store_const", const="log",
+                         help="log spacing of the sweep (the default)")
+    spacing.add_argument("--linear", dest="sweep_spacing", action="store_const",
+                         const="linear", help="linear spacing of the sweep")
     sheet.set_defaults(run=command_sheet)
 
 
@@ -119,6 +134,22 @@ def command_sheet(args) -> int:
     except CircuitError as exc:
         print_study_diagnostics(exc.diagnostics, name, text)
         return EXIT_INPUT
+    sweep_asked = (args.sweep_from is not None or args.sweep_to is not None or
+                   args.sweep_points is not None or args.sweep_spacing is not None)
+    if sweep_asked and not args.sweep_probes:
+        print("sheet: error: --from, --to, --points, --log and --linear set the sweep: "
+              "give --sweep PROBE too", file=sys.stderr)
+        return EXIT_INPUT
+    sweep = None
+    if args.sweep_probes:
+        from ..sheet.sweep import sweep_section
+        try:
+            sweep = sweep_section(text, name, {
+                "probes": args.sweep_probes, "from": args.sweep_from, "to": args.sweep_to,
+                "points": args.sweep_points, "spacing": args.sweep_spacing})
+        except CircuitError as exc:
+            print_study_diagnostics(exc.diagnostics, name, text)
+            return EXIT_INPUT
     harmonics = None
     if args.harmonics or args.pcc or args.rated:
         from ..sheet.harmonics import harmonics_section
@@ -132,7 +163,7 @@ def command_sheet(args) -> int:
                                         waveform_elements=args.elements,
                                         phasor_elements=args.elements, **tools,
                                         tolerance=tolerance, formula=formula,
-                                        harmonics=harmonics))
+                                        harmonics=harmonics, sweep=sweep))
     failed = write_output(args.output, html, "sheet", prefix="sheet")
     if failed is not None:
         return failed

@@ -10,8 +10,8 @@ between editions, which is why the text asks the reader to check the edition in 
 
 from __future__ import annotations
 
-__all__ = ["CAUTIONS", "HARMONIC_CAUTIONS", "HARMONIC_SOURCES", "SCOPE_NOTE", "TOLERANCE_NOTE",
-           "cautions_text"]
+__all__ = ["CAUTIONS", "HARMONIC_CAUTIONS", "HARMONIC_SOURCES", "SCOPE_NOTE", "SWEEP_CAUTIONS",
+           "TOLERANCE_NOTE", "cautions_text"]
 
 #: One sentence for the foot of every result: what the numbers are and are not.
 SCOPE_NOTE = (
@@ -114,6 +114,13 @@ HARMONIC_CAUTIONS: tuple[tuple[str, str], ...] = (
         "engineers.",
     ),
 )
+
+#: Beside a frequency response (the sheet's section): what a resonance in it means for a
+#: real bank. The same texts as above, picked by title, so each lives here once.
+SWEEP_CAUTIONS: tuple[tuple[str, str], ...] = tuple(
+    next(c for c in CAUTIONS + HARMONIC_CAUTIONS if c[0] == title)
+    for title in ("Harmonic resonance", "A bank near resonance needs a real harmonic study",
+                  "Codes and licensed practice come first"))
 
 #: The sources of the harmonic study's limits and definitions, named with its tables.
 HARMONIC_SOURCES = (

@@ -211,7 +211,7 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
                   now: datetime | None = None, waveform_elements=None, phasor_elements=None,
                   correction: dict | None = None, port: dict | None = None,
                   tolerance: dict | None = None, formula: dict | None = None,
-                  harmonics: dict | None = None) -> dict:
+                  harmonics: dict | None = None, sweep: dict | None = None) -> dict:
     """Everything the sheet shows, for ``templates/sheet.html``.
 
     Parameters
@@ -236,6 +236,8 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         The formula section (``sheet/formula.py``), shown when given.
     harmonics : dict, optional
         The harmonics section (``sheet/harmonics.py``), shown when given.
+    sweep : dict, optional
+        The frequency-response section (``sheet/sweep.py``), shown when given.
 
     Returns
     -------
@@ -284,4 +286,5 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         "tolerance": tolerance,
         "formula": formula,
         "harmonics": harmonics,
+        "sweep": sweep,
     }

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import logging
 
+from typing import Literal
+
 from fastapi import APIRouter, Request
 from fastapi.responses import Response
 from pydantic import BaseModel, Field
@@ -19,7 +21,7 @@ from .api import CircuitBody, CorrectionAsk, PortAsk, Text
 from .jsonsafe import utf8
 from .limits import check_size
 from .settings import Settings
-from .study_routes import FormulaAsk
+from .study_routes import FormulaAsk, check_sweep_work
 from .tolerance_routes import ToleranceAsk, check_work
 
 __all__ = ["CorrectionAsk", "PortAsk", "SheetBody", "router", "sheet_answer"]
@@ -39,6 +41,26 @@ class HarmonicsAsk(BaseModel):
     element: str | None = None
 
 
+class SweepAsk(BaseModel):
+    """The frequency response as ``POST /api/sweep`` takes it, without the circuit, and
+    the magnitude scale the picture shows."""
+
+    model_config = api.STRICT
+
+    probes: list[Text] = Field(min_length=1, description="probes: V(n), V(a, b), I(E), "
+                                                          "Z(a, b), Z(n), X/Y")
+    start: float | None = Field(None, alias="from", description="lowest frequency, Hz")
+    stop: float | None = Field(None, alias="to", description="highest frequency, Hz")
+    points: int | None = Field(None, description="number of frequencies (2 to 100,000)")
+    spacing: Text | None = Field(None, description="log (default) or linear")
+    magnitude: Literal["auto", "db", "units"] = Field(
+        "auto", description="magnitude scale of the picture: dB, the probes' units, or auto")
+
+    def ask(self) -> dict:
+        return {"probes": self.probes, "from": self.start, "to": self.stop,
+                "points": self.points, "spacing": self.spacing, "magnitude": self.magnitude}
+
+
 class SheetBody(CircuitBody):
     """A circuit text and, optionally, what else the sheet should show."""
 
@@ -56,6 +78,9 @@ class SheetBody(CircuitBody):
         None, description="add a formula of a probe, as the page's formula tab asks for it")
     harmonics: HarmonicsAsk | None = Field(
         None, description="add the harmonic study, as the page's harmonics tab asks for it")
+    sweep: SweepAsk | None = Field(
+        None, description="add the frequency response, as the page's frequency-response tab "
+                          "asks for it")
 
 
 def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
@@ -65,6 +90,7 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     from ..sheet.powertools import run_power_tools
     from ..sheet.formula import formula_section
     from ..sheet.harmonics import harmonics_section
+    from ..sheet.sweep import sweep_section
     from ..sheet.tolerance import tolerance_section
 
     text, name = body.netlist, answers.PAGE_FILENAME
@@ -75,6 +101,8 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     tools = run_power_tools(text, name, correct=correct, port=port)
     if body.tolerance:
         check_work(workflow.read_circuit(text, name), body.tolerance.model_dump())
+    if body.sweep:
+        check_sweep_work(workflow.read_circuit(text, name), body.sweep.points)
     context = sheet_context(text, name, result=result, waveform_elements=body.elements,
                             phasor_elements=body.elements, **tools,
                             tolerance=tolerance_section(
@@ -85,7 +113,9 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
                                 if body.formula else None),
                             harmonics=harmonics_section(
                                 text, name, body.harmonics.model_dump()
-                                if body.harmonics else None))
+                                if body.harmonics else None),
+                            sweep=sweep_section(text, name, body.sweep.ask()
+                                                if body.sweep else None))
     return render_context(context), context["filename"]
 
 

@@ -108,18 +108,25 @@ async def harmonics(body: HarmonicsBody, request: Request):
     return await api.run_job(request, harmonics_answer, body.netlist, ask)
 
 
-def sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
-    """The sweep JSON of studies.md, after the work bound."""
-    from ..studies.sweep import chosen_points, run_sweep
-    circuit = _read(text, settings)
+def check_sweep_work(circuit, points) -> None:
+    """Raise ``CircuitError`` when a sweep of ``points`` (None: the circuit's sweep line
+    or the default) is past the server's points × unknowns bound."""
+    from ..studies.sweep import chosen_points
     unknowns = _unknowns(circuit)
-    points = chosen_points(circuit, ask.get("points"))
+    points = chosen_points(circuit, points)
     if isinstance(points, int) and points * max(1, unknowns) > MAX_SWEEP_WORK:
         raise CircuitError([Diagnostic(
             f"this sweep is {points:,} points × {unknowns:,} unknowns, above the server's "
             f"limit of {MAX_SWEEP_WORK:,} points × unknowns",
             f"use at most {MAX_SWEEP_WORK // max(1, unknowns):,} points for this circuit, "
             "or run 'phasorbench sweep' on the command line")])
+
+
+def sweep_answer(text: str, ask: dict, settings: Settings) -> dict:
+    """The sweep JSON of studies.md, after the work bound."""
+    from ..studies.sweep import run_sweep
+    circuit = _read(text, settings)
+    check_sweep_work(circuit, ask.get("points"))
     return run_sweep(circuit, ask["probes"], ask.get("start"), ask.get("stop"),
                      ask.get("points"), ask.get("spacing"))
 

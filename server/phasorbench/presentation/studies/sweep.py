@@ -11,8 +11,13 @@ from __future__ import annotations
 
 from .. import formatting as fmt
 
-__all__ = ["READOUT_POINTS", "csv_text", "probe_rows", "readout", "resonance_rows",
-           "resonance_words", "settings_rows", "sweep_display", "value_text"]
+__all__ = ["READOUT_POINTS", "check_row", "csv_text", "probe_rows", "readout",
+           "resonance_rows", "resonance_words", "settings_rows", "sheet_view", "sweep_display",
+           "value_text"]
+
+#: The worked check agrees when the sweep and the single solve differ by less than this
+#: share of the value (both solve the same system; they differ in round-off only).
+CHECK_AGREES = 1e-9
 
 #: Grid points the page's cursor reads out at most (a pointer resolves fewer pixels).
 READOUT_POINTS = 2001
@@ -125,6 +130,49 @@ def sweep_display(result: dict, with_readout: bool = True) -> dict:
     if with_readout:
         display["readout"] = readout(result)
     return display
+
+
+def check_row(check: dict | None, result: dict) -> dict | None:
+    """The worked check (``studies/sweepcheck.py``) as the sheet shows it: the grid point,
+    both values in full (rectangular and polar) and their relative difference."""
+    if check is None:
+        return None
+    unit = result["probes"][check["probe"]]["unit"]
+
+    def full(ph):
+        if ph is None:
+            return "no value"
+        return (f"{fmt.rect(ph, unit, 12)} = {fmt.eng(ph['mag'], unit, 12)} "
+                f"{fmt.angle(ph['deg'], 9)}")
+    rel = check.get("relative")
+    return {"probe": check["probe"], "point": f"grid point {check['index'] + 1:,} of "
+                                              f"{len(result['frequencies_hz']):,}",
+            "frequency": fmt.eng(check["frequency_hz"], "Hz", 12),
+            "sweep": full(check["sweep"]), "single": full(check["single"]),
+            "difference": fmt.MISSING if rel is None else
+            ("0 (identical)" if rel == 0 else fmt.plain(rel, 2)),
+            "ok": rel is not None and rel < CHECK_AGREES,
+            "problem": check.get("problem")}
+
+
+_ORIGIN = {"asked": "as asked for", "default": "the default: two decades either side of "
+           "the analysis frequency"}
+
+
+def sheet_view(result: dict, check: dict | None, origin: dict, svg: str,
+               cautions) -> dict:
+    """The sheet's frequency-response section: the page's strings (`sweep_display`), the
+    picture, where the range came from (``origin``: ``{"kind": "asked" | "line" |
+    "default", "line": n}``), the worked check and the resonance cautions."""
+    view = sweep_display(result, with_readout=False)
+    words = (f"the circuit's sweep line (line {origin.get('line')})"
+             if origin.get("kind") == "line" else _ORIGIN.get(origin.get("kind"), ""))
+    if words:
+        view["settings"].insert(1, {"term": "range from", "value": words})
+    view["svg"] = svg
+    view["check"] = check_row(check, result)
+    view["cautions"] = [{"title": t, "text": x} for t, x in cautions]
+    return view
 
 
 def _num(value) -> str:
