@@ -11,8 +11,12 @@ on the analytic H(s) of an RC low-pass.
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from scipy import signal
 
 from phasorbench.errors import CircuitError, CircuitSyntaxError, format_diagnostic
@@ -162,7 +166,7 @@ def test_a_bad_request_is_still_an_error_with_a_line():
     assert "both ends" in caught.value.diagnostics[0].message
 
 
-SAMPLES = __import__("pathlib").Path(__file__).resolve().parents[2] / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 
 
 @pytest.mark.parametrize("name", ["plant-bus-harmonics", "plant-bus-detuned"])
@@ -173,6 +177,10 @@ def test_the_plant_samples_open_their_sweep_at_the_fundamental_to_the_50th(name)
     # the sample: scanned from 50 Hz to 2.5 kHz (the 50th harmonic of 50 Hz)
     assert (r["range"]["from_hz"], r["range"]["to_hz"]) == (50.0, 2500.0)
     assert r["range"]["to_hz"] / circuit.frequency == 50
+    if name == "plant-bus-detuned":
+        # the detuned bank's parallel resonance sits near order 3.1 (the sample's own
+        # comment); the warning names the order as English does (common practice)
+        assert any("within 10 % of the 3rd harmonic" in w for w in r["warnings"])
     if name == "plant-bus-harmonics":
         # textbook f0 = 1/(2π√(LC)) with the supply and load inductances in parallel
         # seen from the bus (resistances neglected, so within 1 %)
@@ -180,3 +188,26 @@ def test_the_plant_samples_open_their_sweep_at_the_fundamental_to_the_50th(name)
         f0 = 1 / (2 * np.pi * np.sqrt(lt * lload / (lt + lload) * c))
         (peak,) = [x for x in r["resonances"] if x["kind"] == "peak"]
         assert peak["frequency_hz"] == pytest.approx(f0, rel=1e-2)
+
+
+_WORDS = st.sampled_from(["to", "TO", ",", "points", "point", "log", "linear", "lin", "Hz",
+                          "kHz", "KHZ", "10", "2.5k", "0", "-1", "1e400", "1e3", "(", ")",
+                          "*", "Ftop", "Fx", "j2", "@", "%", "V", "400", "2.5", "°", "∠"])
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(_WORDS, max_size=9))
+def test_any_sweep_line_is_read_or_reported_at_a_column(words):
+    # common practice, no source: bad input is a diagnostic with a place, never a crash
+    text = BASE + "sweep " + " ".join(words) + "\n"
+    try:
+        circuit = parse_circuit(text, "f.circuit")
+    except CircuitSyntaxError as exc:
+        for e in exc.errors:
+            assert e.line == LINE and e.column is not None and e.column >= 1
+            assert e.message and e.hint
+        return
+    s = circuit.sweep
+    # studies.md: a line that reads is a valid range
+    assert 0 < s.start < s.stop and (s.points is None or 2 <= s.points <= 100_000)
+    assert s.spacing in (None, "log", "linear")

@@ -131,8 +131,10 @@ async def sheet(body: SheetBody, request: Request):
     made from the circuit's title; 422 ``{"errors": [...], "warnings": [...]}`` when
     the circuit has errors (as ``/api/solve``).
     """
+    # a sheet with a sweep is many solves: the large lane, as POST /api/sweep
     answer, failed = await api.run_guarded(request, sheet_answer, body,
-                                           request.app.state.settings, text=body.netlist)
+                                           request.app.state.settings, text=body.netlist,
+                                           heavy=body.sweep is not None)
     if failed is not None:
         return failed
     html, filename = answer
