@@ -41,7 +41,11 @@ export function createSweep({getSolved, whyNotSolved}) {
     $("sweep-to").placeholder = own ? own.to : "auto";
     $("sweep-points").placeholder = own ? own.points : "auto";
     $("sweep-spacing").options[0].textContent = own ? `auto (${own.spacing})` : "auto";
-    $("sweep-form").dataset.ownRange = own ? own.words : "";
+    const hint = form.querySelector(".hint");
+    if (hint.dataset.plain === undefined) hint.dataset.plain = hint.textContent;
+    hint.textContent = own
+      ? `empty fields take the circuit's sweep line: ${own.words}, ${own.points} points ${own.spacing}`
+      : hint.dataset.plain;
     const kept = picked.filter((p) => offered.includes(p) || p.includes("/"));
     if (!kept.length && offered.length) kept.push(offered[0]);
     picked = kept;

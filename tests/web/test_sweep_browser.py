@@ -201,6 +201,7 @@ def test_export_carries_the_frequency_response_section(new_page, live_server, ar
     assert page.get_attribute("#sweep-from", "placeholder") == "1000"
     assert page.get_attribute("#sweep-to", "placeholder") == "50000"
     assert page.get_attribute("#sweep-points", "placeholder") == "201"
+    assert "sweep line: 1 kHz to 50 kHz, 201 points log" in page.inner_text("#sweep-form .hint")
     pick_only(page, ["I(R1)"])
     with page.expect_response(lambda r: r.url.endswith("/api/sweep")):
         page.click("#sweep-form button[type=submit]")
