@@ -175,3 +175,20 @@ def test_bad_input_raises_with_every_problem():
     # studies.md: unknown element and node, and FROM < TO, all in one pass
     assert len(messages) == 3 and any("below TO" in m for m in messages)
     assert sweep_section(RLC, "<test>", None) is None
+
+
+def test_a_bank_resonance_order_and_its_warning_c19():
+    # check-values C19: 1000 kVA, 5.75 % on 480 V, 60 Hz: X_L = 0.013248 Ω; a 300 kvar
+    # bank: X_C = 0.768 Ω; h = √(S_sc/Q_c) = 7.61387 (456.832 Hz). A load resistor in
+    # parallel leaves the parallel resonance at 1/(2π√(LC)) (textbook parallel RLC).
+    w = 2 * math.pi * 60
+    text = (f"frequency 60 Hz\nsweep 60 Hz to 3 kHz, 300 points\n"
+            f"Vs: voltage src -> 0 277 V\nLt: inductor src -> bus {0.013248 / w!r} H\n"
+            f"Cb: capacitor bus -> 0 {1 / (w * 0.768)!r} F\nRl: resistor bus -> 0 2.3 ohm\n")
+    html, section = _html(text, {"probes": ["Z(bus)"]})
+    (row,) = section["resonances"]
+    assert row["frequency_hz"] == pytest.approx(456.832, rel=1e-6)          # C19
+    assert row["cells"][2] == "peak (parallel resonance)" and row["cells"][4] == "7.61"
+    # studies.md: a Z resonance within ±10 % of an odd order is a warning (the 7th here)
+    assert any("within 10 % of the 7th harmonic" in w for w in section["warnings"])
+    assert "7th harmonic" in _text(html)
