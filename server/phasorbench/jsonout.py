@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 import math
+from collections.abc import Mapping
 
 import orjson
 
@@ -21,7 +22,12 @@ _OPTIONS = orjson.OPT_SERIALIZE_NUMPY | orjson.OPT_NON_STR_KEYS
 
 
 def _default(value):
-    """What orjson cannot write by itself: complex numbers and other numpy values."""
+    """What orjson cannot write by itself: objects that write themselves (a
+    ``json_fragment()`` method giving JSON bytes, such as the harmonic study's per-order
+    tables), complex numbers and other numpy values."""
+    fragment = getattr(value, "json_fragment", None)
+    if fragment is not None:
+        return orjson.Fragment(fragment())
     if isinstance(value, complex):
         return {"re": value.real, "im": value.imag}
     if hasattr(value, "tolist"):          # numpy arrays of a dtype orjson does not write
@@ -44,7 +50,7 @@ def plain(value):
         return value
     if isinstance(value, float):
         return value if math.isfinite(value) else None
-    if isinstance(value, dict):
+    if isinstance(value, (dict, Mapping)):
         return {str(k): plain(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
         return [plain(v) for v in value]

@@ -50,8 +50,7 @@ def circuit_at(circuit: Circuit, frequency: float) -> Circuit:
     elements = dict(circuit.elements)
     changed = {}
     table = circuit.table()
-    for k in [k for k, kind in enumerate(table.kinds) if kind == "voltage" or
-              kind == "current"]:
+    for k in _source_rows(table):
         e = table.elements[k]
         name = e.name
         value = sum((v for f, v in source_components(circuit, e)
@@ -62,6 +61,16 @@ def circuit_at(circuit: Circuit, frequency: float) -> Circuit:
     at = replace(circuit, frequency=frequency, elements=elements)
     _share_table(circuit, at, changed)
     return at
+
+
+def _source_rows(table) -> list[int]:
+    """Positions of the independent sources in an element table, found once per table
+    (a study asks at every order of a circuit of tens of thousands of elements)."""
+    rows = getattr(table, "source_rows", None)
+    if rows is None:
+        rows = table.source_rows = [k for k, kind in enumerate(table.kinds)
+                                    if kind == "voltage" or kind == "current"]
+    return rows
 
 
 def _share_table(circuit: Circuit, at: Circuit, changed: dict) -> None:

@@ -31,6 +31,7 @@ from ..model import Circuit
 from ..results import zero_power_floor
 from ..superposition import SAME_FREQUENCY, circuit_at, source_frequencies
 from ..tools import capacitors as cap
+from .order_tables import PHASOR, RATIO, REAL, OrderBlock
 
 __all__ = ["IEEE519_EDITION", "IEEE519_TABLE1", "ieee519_limits", "order_key",
            "run_harmonics", "solve_orders"]
@@ -136,21 +137,18 @@ def _check_request(circuit: Circuit, pcc, nominal, rated) -> None:
         raise CircuitError(problems)
 
 
-def _phasor_rows(values: np.ndarray) -> list[list[dict]]:
-    """Contract phasor dicts of a 2-D array, row by row (built from plain lists: this is
-    the bulk of the study's time on a big circuit)."""
-    re, im = values.real.tolist(), values.imag.tolist()
-    mag, deg = np.abs(values).tolist(), np.degrees(np.angle(values)).tolist()
-    return [[{"re": a, "im": b, "mag": c, "deg": d} for a, b, c, d in zip(*row)]
-            for row in zip(re, im, mag, deg)]
-
-
-def _ratio_pct(part: np.ndarray, whole: np.ndarray) -> list:
-    """``100·part/whole`` as (nested) lists, None where ``whole`` is 0; ``whole`` is
+def _ratio(part: np.ndarray, whole: np.ndarray) -> np.ndarray:
+    """``100·part/whole`` as an array, NaN where ``whole`` is not above 0; ``whole`` is
     one value per row of ``part``."""
     whole = whole.reshape(whole.shape + (1,) * (part.ndim - whole.ndim))
     out = np.full(part.shape, np.nan)
     np.divide(100.0 * part, whole, out=out, where=np.broadcast_to(whole > 0, part.shape))
+    return out
+
+
+def _ratio_pct(part: np.ndarray, whole: np.ndarray) -> list:
+    """``_ratio`` as (nested) lists, None where it is not finite."""
+    out = _ratio(part, whole)
     if np.isfinite(out).all():
         return out.tolist()
     if out.ndim == 1:
@@ -231,16 +229,18 @@ def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan, detail) -
     i = np.stack([s.current for s in solutions], axis=1)
     q = ieee1459(v, i, k1, to_rms)
     thd_v, thd_i = _ratio_pct(q["vh"], q["v1"]), _ratio_pct(q["ih"], q["i1"])
-    columns = {key: q[key].tolist() for key in _IEEE1459_KEYS + ("v_rms", "i_rms")}
+    columns = [q[key].tolist() for key in _IEEE1459_KEYS]
     kinds = [circuit.elements[name].kind for name in names]
     elements = {name: {
-        "kind": kinds[e], "rms_v": columns["v_rms"][e], "rms_i": columns["i_rms"][e],
-        "thd_v_pct": thd_v[e], "thd_i_pct": thd_i[e], "p_w": columns["p_w"][e],
-        "ieee1459": {key: columns[key][e] for key in _IEEE1459_KEYS}}
-        for e, name in enumerate(names)}
+        "kind": kind, "rms_v": rms_v, "rms_i": rms_i, "thd_v_pct": tv, "thd_i_pct": ti,
+        "p_w": p_w, "ieee1459": dict(zip(_IEEE1459_KEYS, quantities))}
+        for name, kind, rms_v, rms_i, tv, ti, p_w, quantities in zip(
+            names, kinds, q["v_rms"].tolist(), q["i_rms"].tolist(), thd_v, thd_i,
+            columns[_IEEE1459_KEYS.index("p_w")], zip(*columns))}
     # Each order's phasors of every element of a small circuit; of a big one, of the
     # sources, the capacitors and the elements asked for (tens of thousands of elements
-    # × 50 orders would be millions of entries nobody reads).
+    # × 50 orders would be millions of entries nobody reads). Kept as arrays: each
+    # element's ``orders`` reads them as a mapping (order_tables.py).
     if len(names) <= DETAIL_LIMIT:
         rows = list(range(len(names)))
     else:
@@ -249,13 +249,13 @@ def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan, detail) -
                 if kinds[e] in ("voltage", "current", "capacitor") or name in wanted]
     if rows:
         vd, id_ = v[rows], i[rows]
-        v_pct = _ratio_pct(np.abs(vd) * to_rms, q["v1"][rows])
-        i_pct = _ratio_pct(np.abs(id_) * to_rms, q["i1"][rows])
-        for e, v_row, i_row, pv, pi, ph in zip(rows, _phasor_rows(vd), _phasor_rows(id_),
-                                               v_pct, i_pct, q["p_h"][rows].tolist()):
-            elements[names[e]]["orders"] = {
-                key: {"v": a, "i": b, "pct_v": c, "pct_i": d, "p_w": w}
-                for key, a, b, c, d, w in zip(keys, v_row, i_row, pv, pi, ph)}
+        block = OrderBlock(keys, [
+            ("v", PHASOR, vd), ("i", PHASOR, id_),
+            ("pct_v", RATIO, _ratio(np.abs(vd) * to_rms, q["v1"][rows])),
+            ("pct_i", RATIO, _ratio(np.abs(id_) * to_rms, q["i1"][rows])),
+            ("p_w", REAL, q["p_h"][rows])])
+        for r, e in enumerate(rows):
+            elements[names[e]]["orders"] = block.row(r)
 
     all_nodes = list(solutions[0].node_voltages)
     keep = [k for k, n in enumerate(all_nodes) if n != "0"]
@@ -266,10 +266,9 @@ def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan, detail) -
     n1 = nr[:, k1]
     nh = np.sqrt(np.sum(np.delete(nr, k1, axis=1) ** 2, axis=1))
     n_rms, n_thd = np.hypot(n1, nh).tolist(), _ratio_pct(nh, n1)
-    nodes = {name: {"rms_v": rms, "thd_pct": thd,
-                    "orders": {key: {"v": a, "pct": b} for key, a, b in zip(keys, row, pct)}}
-             for name, rms, thd, row, pct in zip(node_names, n_rms, n_thd,
-                                                 _phasor_rows(nv), _ratio_pct(nr, n1))}
+    block = OrderBlock(keys, [("v", PHASOR, nv), ("pct", RATIO, _ratio(nr, n1))])
+    nodes = {name: {"rms_v": rms, "thd_pct": thd, "orders": block.row(r)}
+             for r, (name, rms, thd) in enumerate(zip(node_names, n_rms, n_thd))}
 
     result = {"fundamental_hz": f1, "amplitudes": circuit.amplitudes,
               "orders": [int(round(h)) if _is_harmonic(h) else h for h in orders],
@@ -277,7 +276,7 @@ def _study(circuit, frequencies, solutions, pcc, nominal, rated, scan, detail) -
     result["pcc"] = (_pcc(nodes[pcc] if pcc != "0" else None, pcc, nominal, keys, orders,
                           k1, warnings) if pcc is not None else None)
     result["capacitors"] = _capacitors(circuit, elements, rated or {}, keys, orders, k1,
-                                       scan, warnings)
+                                       scan, warnings, {n: e for e, n in enumerate(names)}, v)
     result["warnings"] = warnings
     return result
 
@@ -313,10 +312,18 @@ def _pcc(node: dict | None, name: str, nominal: float, keys, orders, k1, warning
             "pass": bool(thd_ok and all(verdicts))}
 
 
-def _capacitors(circuit, elements, rated, keys, orders, k1, scan, warnings) -> dict:
+def _capacitors(circuit, elements, rated, keys, orders, k1, scan, warnings, position,
+                v) -> dict:
     names = [n for n, e in circuit.elements.items() if e.kind == "capacitor"]
     if not names:
         return {}
+    # |V| of each capacitor at each order, and the sum of the components' peaks added
+    # order by order as a running sum (the arrays the per-order dicts are read from)
+    mags = np.abs(v[[position[n] for n in names]])
+    peaks_sum = np.zeros(len(names))
+    for k in range(mags.shape[1]):
+        peaks_sum = peaks_sum + mags[:, k]
+    peaks_sum = (peaks_sum * (1.0 if circuit.amplitudes == "peak" else math.sqrt(2))).tolist()
     scanned = sorted(names, key=lambda n: -circuit.elements[n].value.real)[:MAX_SCANNED]
     if scan and len(names) > len(scanned):
         warnings.append(f"the resonance order is scanned for the {MAX_SCANNED} largest of "
@@ -324,19 +331,17 @@ def _capacitors(circuit, elements, rated, keys, orders, k1, scan, warnings) -> d
     peaks = _resonance_orders(circuit, scanned, orders) if scan else {}
     present = [h for h in orders if h > 1]
     out = {}
-    for name in names:
+    for c, name in enumerate(names):
         data = elements[name]
-        entry = {"rms_v": data["rms_v"], "rms_i": data["rms_i"],
-                 "peak_v": sum(data["orders"][key]["v"]["mag"] for key in keys) *
-                 (1.0 if circuit.amplitudes == "peak" else math.sqrt(2)),
+        entry = {"rms_v": data["rms_v"], "rms_i": data["rms_i"], "peak_v": peaks_sum[c],
                  "rated_v": rated.get(name), "duty_pct": None, "limits_pct": None,
                  "exceeded": [], "pass": None, "standard": cap.IEEE18_EDITION,
                  "resonance_orders": peaks.get(name, []),
                  "resonance_order": (peaks.get(name) or [None])[0]}
         if name in rated:
             to_rms = 1 / math.sqrt(2) if circuit.amplitudes == "peak" else 1.0
-            per_unit = {h: data["orders"][key]["v"]["mag"] * to_rms / rated[name]
-                        for key, h in zip(keys, orders)}
+            per_unit = {h: mag * to_rms / rated[name]
+                        for h, mag in zip(orders, mags[c].tolist())}
             check = cap.ieee18_check(cap.capacitor_duty(per_unit))
             entry["duty_pct"] = {"rms_v": 100 * check["duty"]["voltage_rms"],
                                  "peak_v": 100 * check["duty"]["voltage_peak"],
