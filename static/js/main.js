@@ -18,7 +18,7 @@ import {createSweep} from "./sweep.js";
 import {createThreePhase} from "./threephase.js";
 import {createTolerance} from "./tolerance.js";
 import {createFormula} from "./formula.js";
-import {createTabs, savedTool} from "./tools.js";
+import {createTabs} from "./tools.js";
 import {clearViews, renderPicker, showPhasors, showWaveform} from "./views.js";
 
 const CHECK_DELAY_MS = 350;
@@ -304,13 +304,9 @@ function updateTools(choices) {
   tools.threePhase.update(choices.groups, state.solvedText);
   const threePhase = choices.groups.length > 0;
   tools.tabs.offer("three-phase", threePhase);
-  // The tab last chosen, or the three-phase view for a circuit that has blocks.
-  const wanted = savedTool("panel").tab || (threePhase ? "three-phase" : "correct");
-  if (wanted !== tools.tabs.current && (wanted !== "three-phase" || threePhase)) {
-    tools.tabs.show(wanted, {remember: false});
-  } else if (tools.tabs.current === "three-phase") {
-    tools.threePhase.load();
-  }
+  // The tab the circuit calls for (the three-phase view of blocks, the correction of a
+  // mains supply drawing real power, else none), or the one picked for such a circuit.
+  tools.tabs.open(choices.suggested);
 }
 
 /** The three-phase block an element belongs to, or null. */
@@ -480,7 +476,7 @@ function setupTools() {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),
   };
-  tools.tabs.show(savedTool("panel").tab || "correct", {remember: false});
+  tools.tabs.close();          // until a solve says which tab the circuit calls for
 }
 
 /**

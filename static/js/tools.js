@@ -114,22 +114,38 @@ export function smallTable(caption, headings, rows, numeric = () => true) {
  */
 export function createTabs(root, {onShow}) {
   const tabs = () => [...root.querySelectorAll('[role="tab"]')].filter((t) => !t.hidden);
+  const none = document.getElementById("tool-none");
   let current = null;
+  let context = null;     // the tab the circuit on screen suggests, saved with a pick
 
-  function show(name, {focus = false, remember = true} = {}) {
+  function mark(tab) {
     const all = [...root.querySelectorAll('[role="tab"]')];
-    const tab = all.find((t) => t.dataset.tool === name && !t.hidden) || tabs()[0];
-    if (!tab) return;
     for (const t of all) {
       const on = t === tab;
       t.setAttribute("aria-selected", on ? "true" : "false");
       t.tabIndex = on ? 0 : -1;
       document.getElementById(t.getAttribute("aria-controls")).hidden = !on;
     }
+    if (none) none.hidden = Boolean(tab);
+  }
+
+  function show(name, {focus = false, remember = true} = {}) {
+    const all = [...root.querySelectorAll('[role="tab"]')];
+    const tab = all.find((t) => t.dataset.tool === name && !t.hidden) || tabs()[0];
+    if (!tab) return;
+    mark(tab);
     if (focus) tab.focus();
     current = tab.dataset.tool;
-    if (remember) saveTool("panel", {tab: current});
+    if (remember) saveTool("panel", {tab: current, suggested: context});
     onShow(current);
+  }
+
+  /** No tab open: the tables and diagrams hold the answer; the first tab stays reachable. */
+  function close() {
+    mark(null);
+    current = null;
+    const first = tabs()[0];
+    if (first) first.tabIndex = 0;
   }
 
   root.addEventListener("click", (event) => {
@@ -149,7 +165,24 @@ export function createTabs(root, {onShow}) {
 
   return {
     show,
+    close,
     get current() { return current; },
+    /**
+     * Open the tab worth opening for a circuit: the one the person last picked while
+     * the circuit on screen suggested the same (`suggested`, from the server's
+     * `display.tools`), else the suggestion itself (null: none open).
+     */
+    open(suggested) {
+      context = suggested ?? null;
+      const saved = savedTool("panel");
+      const wanted = saved.tab && (saved.suggested ?? null) === context ? saved.tab : context;
+      if (wanted && tabs().some((t) => t.dataset.tool === wanted)) {
+        if (wanted !== current) show(wanted, {remember: false});
+        else onShow(current);
+      } else {
+        close();
+      }
+    },
     /** Show or hide a tab; a hidden current tab gives way to the first one left. */
     offer(name, on) {
       const tab = root.querySelector(`[role="tab"][data-tool="${name}"]`);

@@ -252,3 +252,45 @@ def test_three_phase_page_fits_the_laptop_screen(new_page, tools_server, artifac
                       "document.getElementById('tools').getBoundingClientRect().right + 1).length")
         assert over == 0, selector
     page.screenshot(path=str(artifacts / "three-phase-1366x768.png"))
+
+
+#: A balanced bridge on a 1 V, 1 kHz instrument supply (invented): equal arms, so the
+#: detector Rd carries no current and takes no power (textbook bridge balance).
+BRIDGE = """title Instrument bridge
+frequency 1 kHz
+Vs: voltage top -> 0 1 V
+R1: resistor top -> l 1 kohm
+R2: resistor l -> 0 1 kohm
+R3: resistor top -> r 1 kohm
+R4: resistor r -> 0 1 kohm
+Rd: resistor l -> r 100 ohm
+"""
+
+
+def test_the_tools_panel_opens_the_tab_the_circuit_calls_for(new_page, tools_server):
+    page = new_page()
+    open_page(page, tools_server)
+    # The shop load: a 120 V supply drawing real power, so the correction tab is open.
+    assert page.get_attribute("#tab-correct", "aria-selected") == "true"
+    with page.expect_response(lambda r: r.url.endswith("/api/solve")):
+        page.fill("#editor-text", BRIDGE)
+        page.keyboard.press("Control+Enter")
+    page.wait_for_selector('#branch-table tr[data-element="Rd"]', timeout=TIMEOUT_MS)
+    # common practice, no source: a 1 V bridge has no power factor worth correcting; no
+    # tool tab is open, the tables and diagram are the answer
+    assert page.locator('#tool-tabs [aria-selected="true"]').count() == 0
+    assert page.locator("#tool-correct").is_hidden()
+    assert page.locator("#tool-none").is_visible()
+    # textbook bridge balance: 0 A in the detector, so no power and no power factor
+    assert "no power" in page.inner_text('#branch-table tr[data-element="Rd"]')
+    assert "unity" not in page.inner_text('#branch-table tr[data-element="Rd"]')
+    # A pick made for such a circuit is kept for it, and the tabs still work by keyboard.
+    page.click("#tab-port")
+    assert page.locator("#tool-port").is_visible() and page.locator("#tool-none").is_hidden()
+    with page.expect_response(lambda r: r.url.endswith("/api/solve")):
+        page.keyboard.press("Control+Enter")
+    assert page.get_attribute("#tab-port", "aria-selected") == "true"
+    # Back to a mains load: its suggestion differs from the one the pick was made under.
+    load_sample(page, "shop-load")
+    page.wait_for_function("() => document.getElementById('tab-correct').getAttribute('aria-selected') === 'true'",
+                           timeout=TIMEOUT_MS)

@@ -12,8 +12,8 @@ from __future__ import annotations
 import math
 
 from .formatting import (ELEMENT_COLUMNS, LIMITED, MISSING, NODE_COLUMNS, ROUND_OFF, SHOWN_DIGITS,
-                          element_rows, eng, node_rows, phasor, plain, power_factor, rect,
-                          shown_digits)
+                          element_rows, eng, node_rows, phasor, plain, power_factor,
+                          power_factor_of, rect, shown_digits)
 from .rows import first_rows
 
 #: Used only when a result carries no balance verdict of its own (results.py gives one):
@@ -93,7 +93,8 @@ def _source_row(name: str, el: dict) -> dict:
                      "p": mark + eng(p, "W", d, floor=floor),
                      "q": mark + eng(q, "var", d, floor=floor),
                      "s": mark + eng(el.get("s_va"), "VA", d),
-                     "pf": mark + power_factor(el.get("pf"), el.get("pf_sense"), d)}}
+                     "pf": mark + power_factor_of(el.get("pf"), el.get("pf_sense"), el.get("s_va"),
+                                                 floor, d)}}
 
 
 def power_summary(result: dict) -> dict:
@@ -124,7 +125,7 @@ def power_summary(result: dict) -> dict:
                         "p": eng(g.get("p_w"), "W", floor=floor),
                         "q": eng(g.get("q_var"), "var", floor=floor),
                         "s": eng(g.get("s_va"), "VA", floor=floor),
-                        "pf": power_factor(g.get("pf"), g.get("pf_sense")),
+                        "pf": power_factor_of(g.get("pf"), g.get("pf_sense"), g.get("s_va")),
                         "unbalance": _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR)}}
               for name, g in (result.get("groups") or {}).items()]
     return {"sources": sources, "totals": totals, "groups": groups}
@@ -274,7 +275,7 @@ def group_rows(result: dict) -> list[dict]:
                      "p": eng(seen.get("p_w"), "W", floor=s_floor),
                      "q": eng(seen.get("q_var"), "var", floor=s_floor),
                      "s": eng(g.get("s_va"), "VA", floor=s_floor),
-                     "pf": power_factor(g.get("pf"), g.get("pf_sense"))},
+                     "pf": power_factor_of(g.get("pf"), g.get("pf_sense"), g.get("s_va"))},
             "sub": {"name": f"{len(g.get('elements', []))} phases", "kind": connection,
                     "terminals": about, "p": total, "q": total if supply else ""},
         })
@@ -325,7 +326,8 @@ def group_detail(result: dict, name: str) -> dict:
         {"term": "Q delivered" if supply else "Q total",
          "value": eng((supply or g).get("q_var"), "var", floor=s_floor)},
         {"term": "|S| total", "value": eng(g.get("s_va"), "VA", floor=s_floor)},
-        {"term": "power factor", "value": power_factor(g.get("pf"), g.get("pf_sense"))},
+        {"term": "power factor",
+         "value": power_factor_of(g.get("pf"), g.get("pf_sense"), g.get("s_va"))},
         {"term": "voltage unbalance V₂/V₁",
          "value": _percent(g.get("voltage_unbalance"), _UNBALANCE_FLOOR)},
         {"term": "neutral current",
@@ -374,7 +376,7 @@ def tool_choices(result: dict) -> dict:
     probes = ([f"Z({n})" for n in live] + [f"V({n})" for n in live] +
               [f"I({name})" for name in result.get("elements", {})])
     return {"sources": sources, "nodes": nodes, "groups": groups, "probes": probes,
-            "sweep": _sweep_choice(result.get("sweep"))}
+            "sweep": _sweep_choice(result.get("sweep")), "suggested": suggested_tool(result)}
 
 
 def _sweep_choice(sweep: dict | None) -> dict | None:
@@ -385,6 +387,42 @@ def _sweep_choice(sweep: dict | None) -> dict | None:
     return {"from": plain(sweep["from_hz"], 9), "to": plain(sweep["to_hz"], 9),
             "points": str(sweep["points"]), "spacing": sweep["spacing"],
             "words": f"{eng(sweep['from_hz'], 'Hz')} to {eng(sweep['to_hz'], 'Hz')}"}
+
+
+#: A supply reads as mains-like at a power frequency (45–65 Hz: the 50 Hz and 60 Hz
+#: systems with their tolerances; 400 Hz aircraft and ship supplies too) and at
+#: 90 V RMS or more (the lowest public low-voltage supply, 100 V, less 10 %).
+_MAINS_BANDS_HZ = ((45.0, 65.0), (360.0, 440.0))
+_MAINS_MIN_V = 90.0
+
+
+def _mains_like(result: dict, v_peak_or_rms: float) -> bool:
+    f = _number(result.get("frequency_hz"))
+    rms = v_peak_or_rms / (math.sqrt(2.0) if result.get("amplitudes") == "peak" else 1.0)
+    return any(lo <= f <= hi for lo, hi in _MAINS_BANDS_HZ) and rms >= _MAINS_MIN_V
+
+
+def suggested_tool(result: dict) -> str | None:
+    """The tools tab worth opening first for this circuit, or None (the tables and the
+    phasor diagram say most).
+
+    ``"three-phase"`` for a circuit with three-phase blocks; ``"correct"`` when a
+    voltage source or ``voltage3`` block that reads as a mains supply (`_mains_like`)
+    delivers real power beyond round-off; otherwise None: a 1 V instrument bridge or a
+    signal filter has no power factor worth correcting.
+    """
+    if result.get("groups"):
+        return "three-phase"
+    elements = result.get("elements", {})
+    flow = max((_number(e.get("s_va")) for e in elements.values()), default=0.0)
+    for el in elements.values():
+        if el.get("kind") != "voltage" or el.get("group"):
+            continue
+        delivered = -_number(el.get("p_w"))       # passive sign: a supply's p_w < 0
+        if delivered > ROUND_OFF * flow and delivered > 0 and \
+                _mains_like(result, _mag(el.get("voltage"))):
+            return "correct"
+    return None
 
 
 # --- power tools ------------------------------------------------------------------------

@@ -25,6 +25,7 @@ __all__ = [
     "SHOWN_DIGITS",
     "NODE_COLUMNS",
     "MISSING",
+    "NO_POWER",
     "ROUND_OFF",
     "angle",
     "decibels",
@@ -36,11 +37,14 @@ __all__ = [
     "phasor",
     "plain",
     "power_factor",
+    "power_factor_of",
     "rect",
 ]
 
 #: Shown for a value that does not exist (None, NaN).
 MISSING = "—"
+#: The power factor of an element that takes no power: there is no angle to quote.
+NO_POWER = "— no power"
 
 #: Values smaller than this fraction of the largest value of their kind in a circuit
 #: are round-off of the solve (double precision leaves ~1e-16 relative error, times
@@ -297,6 +301,15 @@ def power_factor(pf, sense: str | None = None, digits: int = 4) -> str:
     return f"{text} {sense}" if sense else text
 
 
+def power_factor_of(pf, sense, s_va, floor: float = 0.0, digits: int = 4) -> str:
+    """`power_factor`, or `NO_POWER` where ``s_va`` is zero or below ``floor`` (round-off):
+    the contract's ``pf`` of 1.0 there is a convention, and "1 unity" would read as a
+    measured unity power factor."""
+    if not _is_missing(s_va) and (float(s_va) == 0.0 or abs(float(s_va)) < floor):
+        return NO_POWER
+    return power_factor(pf, sense, digits)
+
+
 def _floor(values, fraction: float = ROUND_OFF) -> float:
     """A round-off floor: ``fraction`` of the largest finite magnitude (0 if none)."""
     finite = [abs(v) for v in values if not _is_missing(v) and math.isfinite(v)]
@@ -415,7 +428,7 @@ def _pf_text(el: dict, s_floor: float, digits: int = SHOWN_DIGITS) -> str:
     if _is_missing(s) or _is_missing(p):
         return power_factor(el.get("pf"), el.get("pf_sense"), digits)
     if abs(s) < s_floor or s == 0:
-        return power_factor(1.0, "unity")  # the contract's convention for |S| = 0
+        return NO_POWER  # the contract's pf 1.0 for |S| = 0 is a convention, not a reading
     pf = 0.0 if abs(p) < s_floor else el.get("pf", abs(p) / s)
     sense = "unity" if (not _is_missing(q) and abs(q) < s_floor) else el.get("pf_sense")
     return power_factor(pf, sense, digits)
