@@ -36,6 +36,7 @@ export function createCorrection({getSolved, onAppend, whyNotSolved}) {
       source: $("pfc-source").value, target: $("pfc-target").value,
       leading: $("pfc-leading").checked, place: $("pfc-place").value,
       nodes: boxes.map((b) => b.value), bank: $("pfc-bank").value, rated: $("pfc-rated").value,
+      ratings: $("pfc-ratings").value,
     });
   }
 
@@ -69,6 +70,7 @@ export function createCorrection({getSolved, onAppend, whyNotSolved}) {
     $("pfc-leading").checked = saved.leading === true;
     if (saved.bank) $("pfc-bank").value = saved.bank;
     if (typeof saved.rated === "string") $("pfc-rated").value = saved.rated;
+    if (typeof saved.ratings === "string") $("pfc-ratings").value = saved.ratings;
     arrange();
   }
 
@@ -83,6 +85,8 @@ export function createCorrection({getSolved, onAppend, whyNotSolved}) {
     if (!$("pfc-bank-field").hidden) body.bank = $("pfc-bank").value;
     const rated = $("pfc-rated").value.trim();
     if (rated) body.rated_voltage = Number(rated);
+    // an emptied list falls back to the common ratings the field started with
+    body.ratings_kvar = $("pfc-ratings").value.trim() || $("pfc-ratings").dataset.default;
     return body;
   }
 
@@ -117,7 +121,35 @@ export function createCorrection({getSolved, onAppend, whyNotSolved}) {
         el("pre", {class: "lines", "aria-label": "lines to add to the circuit"},
            el("code", {}, [d.comment, ...d.lines].join("\n"))),
         el("div", {}, appendButton, state)),
+      d.standard ? standardSizes(d, text) : null,
       warnings, factList(d.facts), bank, cautions);
+  }
+
+  /** The standard ratings either side of the exact answer, each with its re-solved PF. */
+  function standardSizes(d, text) {
+    const s = d.standard;
+    const rows = s.rows.map((row) => {
+      let action = "";
+      if (row.lines.length) {
+        const button = el("button", {type: "button", class: "small", dataset: {which: row.which}},
+                          "Append");
+        button.title = `append ${row.lines.length > 1 ? "these lines" : "this line"} to the circuit and solve`;
+        button.addEventListener("click", async () => {
+          button.disabled = true;
+          const comment = `# standard bank for ${d.heading.split(":")[0]}: ${row.rating.split(": ")[1]}`;
+          const done = await onAppend(text, comment, row.lines);
+          $("pfc-append-state").textContent = done ? `appended the ${row.rating.split(":")[0]} and solved`
+            : "not appended: the circuit changed since this was sized; size it again";
+          if (!done) button.disabled = false;
+        });
+        action = button;
+      }
+      return [row.rating, row.capacitance, row.q, row.pf, row.meets, action];
+    });
+    const table = smallTable(s.heading, [...s.columns, ""], rows, (k) => k >= 1 && k <= 3);
+    table.classList.add("standard-sizes");
+    for (const [k, tr] of [...table.tBodies[0].rows].entries()) tr.dataset.which = s.rows[k].which;
+    return el("div", {class: "standard-block"}, table, el("p", {class: "hint"}, s.note));
   }
 
   let answered = null;     // {text, asked} of the correction on screen

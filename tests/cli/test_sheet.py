@@ -149,6 +149,14 @@ def test_power_tools_on_the_sheet(tmp_path, capsys):
     html = out.read_text(encoding="utf-8")
     # check-values C14: C = 310.438 µF (Alexander & Sadiku PFC example, book 310.5 µF).
     assert 'id="correction"' in html and "310.438 µF" in html and 'id="port"' in html
+    # The standard ratings either side, re-solved: C14's P = 4 kW, Q = 3 kvar, so on this
+    # ideal bus 2 kvar gives 4000/√(4000² + 1000²) = 0.9701 (textbook power triangle).
+    assert "Standard bank ratings at 120 V" in html and "0.9701 lagging" in html
+    with_list = tmp_path / "motor-list.html"
+    assert run(["sheet", str(path), "-o", str(with_list), "--correct", "V1", "0.95",
+                "--ratings", "1, 2.5"], capsys)[0] == 0
+    # 2.5 kvar: 4000/√(4000² + 500²) = 0.9923 (same triangle)
+    assert "0.9923 lagging" in with_list.read_text(encoding="utf-8")
     # A wrong source is the `correct` command's error, word for word, and exit 2.
     sheet = run(["sheet", str(path), "--correct", "V9", "0.95"], capsys)
     correct = run(["correct", str(path), "--source", "V9", "--target", "0.95"], capsys)

@@ -87,6 +87,26 @@ def test_correct_text_report(write, capsys):
     assert ": warning: the capacitor and the network behind it resonate" in out.err
 
 
+def test_correct_lists_the_standard_ratings_either_side(write, capsys):
+    status = main(["correct", write(C14), "--source", "Vs", "--target", "0.95",
+                   "--ratings", "1.5, 2, 2.5"])
+    out = capsys.readouterr()
+    assert status == 0
+    # check-values C14: P = 4 kW, Q = 3 kvar, exact Qc = 1685 var; with a bank of Qc the
+    # ideal bus leaves PF = P/√(P² + (Q − Qc)²): 1.5 kvar 0.9363, 2 kvar 0.9701
+    # (textbook power triangle)
+    assert "next rating down: 1.5 kvar" in out.out and "0.9363 lagging" in out.out
+    assert "next rating up: 2 kvar" in out.out and "0.9701 lagging" in out.out
+    status = main(["correct", write(C14), "--source", "Vs", "--target", "0.95", "--json",
+                   "--ratings", "2"])
+    sizes = _strict_json(capsys.readouterr().out)["standard_sizes"]
+    assert sizes["below"] is None and sizes["above"]["rating_kvar"] == 2.0
+    # a bad list: the error's shape, exit 2 (common practice, no source)
+    assert main(["correct", write(C14), "--source", "Vs", "--target", "0.95",
+                 "--ratings", "2, big"]) == 2
+    assert "'big'" in capsys.readouterr().err
+
+
 def test_correct_across_two_nodes_and_a_leading_target(write, capsys):
     status = main(["correct", write(FEEDER), "--source", "Vs", "--target", "0.9",
                    "--across", "bus", "0", "--leading", "--json"])

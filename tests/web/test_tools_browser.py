@@ -175,7 +175,7 @@ def test_correct_a_three_phase_source_with_a_delta_bank(new_page, tools_server, 
     page.fill("#pfc-target", "0.99")
     size_capacitor(page)
     assert fact_text(page, "pfc-out", "capacitance").endswith("each (3 units, delta bank)")
-    assert page.locator("#pfc-out table.small tbody tr").count() == 3
+    assert page.locator("#pfc-out table.small:not(.standard-sizes) tbody tr").count() == 3
     page.locator("#tools").scroll_into_view_if_needed()
     page.screenshot(path=str(artifacts / "tools-correction-bank-1366x768.png"))
     append_and_solve(page)
@@ -294,3 +294,43 @@ def test_the_tools_panel_opens_the_tab_the_circuit_calls_for(new_page, tools_ser
     load_sample(page, "shop-load")
     page.wait_for_function("() => document.getElementById('tab-correct').getAttribute('aria-selected') === 'true'",
                            timeout=TIMEOUT_MS)
+
+
+def test_standard_bank_sizes_beside_the_exact_answer(new_page, tools_server, artifacts):
+    page = new_page()
+    open_page(page, tools_server)
+    page.fill("#pfc-target", "0.95")
+    size_capacitor(page)
+    rows = page.locator("#pfc-out table.standard-sizes tbody tr")
+    assert rows.count() == 2
+    down = page.inner_text('#pfc-out table.standard-sizes tr[data-which="below"]')
+    up = page.inner_text('#pfc-out table.standard-sizes tr[data-which="above"]')
+    # check-values C14: P = 4 kW, Q = 3 kvar at 120 V; exact Qc = 1685 var, so the common
+    # ratings either side are 1.5 and 2 kvar, and on this ideal bus the power triangle
+    # gives PF = P/√(P² + (Q − Qc)²): 4000/√(4000² + 1500²) = 0.9363, 4000/√(4000² + 1000²)
+    # = 0.9701 (textbook power triangle)
+    assert "1.5 kvar" in down and "0.9363 lagging" in down and "short of the target" in down
+    assert "2 kvar" in up and "0.9701 lagging" in up and "meets the target" in up
+    assert "rated at the voltage they see" in page.inner_text("#pfc-out .standard-block")
+    page.locator("#pfc-out .standard-block").scroll_into_view_if_needed()
+    page.screenshot(path=str(artifacts / "tools-standard-sizes-1366x768.png"))
+
+    # An edited list: 1 and 2.5 kvar (formula as above: 4000/√(4000² + 500²) = 0.9923)
+    page.fill("#pfc-ratings", "1, 2.5")
+    size_capacitor(page)
+    up = page.inner_text('#pfc-out table.standard-sizes tr[data-which="above"]')
+    assert "2.5 kvar" in up and "0.9923 leading" not in up and "0.9923 lagging" in up
+    assert "1 kvar" in page.inner_text('#pfc-out table.standard-sizes tr[data-which="below"]')
+    # A bad list is the language's error, said in the panel.
+    page.fill("#pfc-ratings", "1, ten")
+    with page.expect_response(lambda r: r.url.endswith("/api/correct")):
+        page.click("#pfc-form button[type=submit]")
+    page.wait_for_function("() => document.getElementById('pfc-out').textContent.includes('ten')",
+                           timeout=TIMEOUT_MS)
+    # Append the standard size and solve: the supply runs at the power factor shown.
+    page.fill("#pfc-ratings", "1, 2.5")
+    size_capacitor(page)
+    with page.expect_response(lambda r: r.url.endswith("/api/solve")):
+        page.click('#pfc-out table.standard-sizes tr[data-which="above"] button')
+    page.wait_for_selector('#branch-table tr[data-element="Cpf1"]', timeout=TIMEOUT_MS)
+    assert "0.9923 lagging" in page.inner_text('#source-table tr[data-element="V1"]')

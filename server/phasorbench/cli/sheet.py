@@ -53,6 +53,9 @@ def add_sheet_command(commands) -> None:
                        help="the correction aims at a leading target")
     sheet.add_argument("--rated-voltage", metavar="V",
                        help="rated rms voltage of each capacitor unit (IEEE Std 18 duty)")
+    sheet.add_argument("--ratings", metavar="KVAR,...",
+                       help="standard bank ratings in kvar for the correction, as "
+                            "phasorbench correct --ratings")
     sheet.add_argument("--port", nargs=2, metavar=("A", "B"),
                        help="add the Thevenin and Norton equivalents seen from nodes A and B")
     sheet.add_argument("--tolerance", action="append", metavar="P", dest="tol_probes",
@@ -105,16 +108,19 @@ def command_sheet(args) -> int:
     result = solve_text(text, name)
     correct = None
     placed = (args.correct_at is not None or args.correct_across or args.bank or
-              args.neutral or args.leading or args.rated_voltage is not None)
+              args.neutral or args.leading or args.rated_voltage is not None or
+              args.ratings is not None)
     if args.correct:
         from .tools import correction_at, rated_voltage
         correct = {"source": args.correct[0], "target": args.correct[1],
                    "at": correction_at(args.correct_at, args.correct_across),
                    "bank": args.bank, "neutral": args.neutral, "leading": args.leading,
-                   "rated_voltage": rated_voltage(args.rated_voltage)}
+                   "rated_voltage": rated_voltage(args.rated_voltage),
+                   "ratings_kvar": args.ratings}
     elif placed:
-        print("sheet: error: --correct-at, --correct-across, --bank, --neutral, --leading "
-              "and --rated-voltage place or size a correction: give --correct SOURCE PF too",
+        print("sheet: error: --correct-at, --correct-across, --bank, --neutral, --leading, "
+              "--rated-voltage and --ratings place or size a correction: give --correct "
+              "SOURCE PF too",
               file=sys.stderr)
         return EXIT_INPUT
     tools = run_power_tools(text, name, correct=correct, port=args.port)

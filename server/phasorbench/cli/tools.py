@@ -55,6 +55,10 @@ def add_tool_commands(commands) -> None:
     correct.add_argument("--rated-voltage", metavar="V",
                          help="rated rms voltage of each capacitor unit: check its duty "
                          "against the continuous limits of IEEE Std 18-2002")
+    correct.add_argument("--ratings", metavar="KVAR,...",
+                         help="standard bank ratings in kvar at the rated voltage, e.g. "
+                         "'5,7.5,10,12.5': the next one down and up from the exact answer, "
+                         "each re-solved (default: common ratings from 0.25 to 5000 kvar)")
     correct.add_argument("--json", action="store_true", help="print the result as JSON")
     correct.set_defaults(run=command_correct)
 
@@ -105,7 +109,8 @@ def command_correct(args) -> int:
     result = correct_power_factor(circuit, args.source, args.target, at=at,
                                   leading=args.leading,
                                   rated_voltage=rated_voltage(args.rated_voltage),
-                                  bank=args.bank, neutral=args.neutral)
+                                  bank=args.bank, neutral=args.neutral,
+                                  ratings=args.ratings)
     sys.stdout.write(dump_json(result) + "\n" if args.json else correction_text(result))
     print_warnings(result.get("warnings", []), name, text)
     return EXIT_OK
@@ -196,6 +201,7 @@ def correction_text(r: dict) -> str:
                                    f"{d['seconds'] / 60:g} min)"))
     out += _rows(pairs)
     out += ["", "Add to the circuit:"] + [f"  {line}" for line in r["circuit_lines"]]
+    out += _standard_text(r)
     out += ["", "Cautions:"]
     for c in r["cautions"]:
         body = c["detail"] or c["text"]
@@ -204,6 +210,20 @@ def correction_text(r: dict) -> str:
     out += [textwrap.fill(r["scope_note"], width=92, initial_indent="  ",
                           subsequent_indent="  ")]
     return "\n".join(out) + "\n"
+
+
+def _standard_text(r: dict) -> list[str]:
+    """The standard ratings either side of the exact answer, each re-solved."""
+    from ..presentation.display import standard_sizes_display
+    shown = standard_sizes_display(r)
+    if shown is None:
+        return []
+    out = ["", shown["heading"] + ":"]
+    out += _rows([(s["rating"], f"{s['capacitance']}, {s['q']} supplied, PF {s['pf']} "
+                                f"{s['meets']}".rstrip()) for s in shown["rows"]])
+    out.append(textwrap.fill(f"{shown['note']}.", width=92, initial_indent="  ",
+                             subsequent_indent="  "))
+    return out
 
 
 def port_text(r: dict) -> str:

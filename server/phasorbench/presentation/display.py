@@ -551,7 +551,48 @@ def correction_display(r: dict) -> dict:
         "cautions": [{"title": c["title"], "detail": c["detail"]}
                      for c in r.get("cautions", []) if c.get("detail")],
         "scope_note": r.get("scope_note", ""),
+        "standard": standard_sizes_display(r),
     }
+
+
+def standard_sizes_display(r: dict) -> dict | None:
+    """The standard ratings next to the exact correction, as the panel and sheet show them.
+
+    ``{"heading", "note", "columns", "rows": [{"which", "rating", "capacitance", "q",
+    "pf", "meets", "lines"}], "ratings"}`` (``ratings``: the list used, as editable text);
+    None when the result carries no ``standard_sizes``.
+    """
+    sizes = r.get("standard_sizes")
+    if not sizes:
+        return None
+    units = r.get("units", 1)
+    each = " each" if units > 1 else ""
+    rated = eng(sizes["rated_voltage_v"], "V", 4)
+    given = ("" if sizes["rated_voltage_given"]
+             else "no rated voltage was given, so the units are rated at the voltage they see; ")
+    rows = []
+    for which, words in (("below", "next rating down"), ("above", "next rating up")):
+        size = sizes.get(which)
+        if size is None:
+            rows.append({"which": which, "rating": f"{words}: none in the list",
+                         "capacitance": MISSING, "q": MISSING, "pf": MISSING, "meets": "",
+                         "lines": []})
+            continue
+        rows.append({
+            "which": which,
+            "rating": f"{words}: {plain(size['rating_kvar'], 6)} kvar",
+            "capacitance": f"{eng(size['capacitance_f'], 'F', 4)}{each}",
+            "q": eng(size["q_var"], "var"),
+            "pf": power_factor(size["pf"], size["pf_sense"]),
+            "meets": "✓ meets the target" if size["meets_target"] else "▲ short of the target",
+            "lines": list(size["circuit_lines"])})
+    return {"heading": f"Standard bank ratings at {rated}, "
+                       f"{eng(sizes['rated_frequency_hz'], 'Hz')}",
+            "note": f"{given}the exact correction is {plain(sizes['exact_kvar'], 4)} kvar at "
+                    "that rating; each standard size was added to the circuit and solved",
+            "columns": ["Bank rating", "Capacitance", "Q supplied", "Power factor", ""],
+            "rows": rows,
+            "ratings": ", ".join(plain(q, 6) for q in sizes["ratings_kvar"])}
 
 
 def port_display(r: dict) -> dict:

@@ -153,6 +153,7 @@ def tool_section(data: dict | None, tool: str, known=()) -> dict | None:
         "capacitors": capacitors if len(capacitors) > 1 else [],
         "lines": shown.get("lines", []),
         "cautions": shown.get("cautions", []),
+        "standard": shown.get("standard"),
         "notes": _notes(data.get("warnings", []), known) + list(shown.get("notes", [])),
     })
     return section

@@ -39,7 +39,8 @@ def run_power_tools(text: str, filename: str = "<circuit>", *, correct: dict | N
         out["correction"] = correct_power_factor(
             circuit, correct["source"], correct["target"], at=at,
             leading=bool(correct.get("leading")), rated_voltage=correct.get("rated_voltage"),
-            bank=correct.get("bank"), neutral=correct.get("neutral"))
+            bank=correct.get("bank"), neutral=correct.get("neutral"),
+            ratings=correct.get("ratings_kvar"))
     if port is not None:
         a, b = port
         out["port"] = port_equivalent(circuit, a, b)

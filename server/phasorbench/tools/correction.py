@@ -34,6 +34,7 @@ from ..solver import solve
 from ._correction_report import ieee18_every_order, report
 from ._network import (canonical_node, derived, fresh_name, input_error,
                        port_model)
+from .standard_sizes import parse_ratings, standard_sizes
 
 __all__ = ["correct_power_factor"]
 
@@ -52,7 +53,8 @@ _DELTA = np.array([[2.0, -1.0], [-1.0, 2.0]])
 def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=None,
                          leading: bool = False, rated_voltage: float | None = None, *,
                          bank: str | None = None, neutral: str | None = None,
-                         rated_frequency: float | None = None, method: str = "auto") -> dict:
+                         rated_frequency: float | None = None, method: str = "auto",
+                         ratings=None) -> dict:
     """Size the smallest shunt capacitance that brings ``source`` to ``target_pf``.
 
     Parameters
@@ -80,6 +82,10 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
         Rated frequency of the units for that check (default: the circuit's).
     method : {"auto", "closed-form", "bracketed"}
         ``auto`` takes the closed form for one port and the root find for a bank.
+    ratings : sequence of kvar, or text, optional
+        Standard bank ratings (all units together, at the rated voltage) for
+        ``standard_sizes``: the next one below and above the exact answer, each
+        re-solved (default ``standard_sizes.DEFAULT_RATINGS_KVAR``).
 
     Returns
     -------
@@ -88,7 +94,8 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
         ``capacitance_f`` (per unit), ``q_var`` (reactive power the capacitors supply,
         positive), ``pf_before``, ``pf_after`` (from the re-solved circuit),
         ``formula_capacitance_f``, ``voltage_before``/``voltage_after``,
-        ``capacitor_current``, ``harmonic_order``, ``circuit_lines`` and ``cautions``.
+        ``capacitor_current``, ``harmonic_order``, ``circuit_lines``, ``cautions`` and
+        ``standard_sizes`` (`standard_sizes.standard_sizes`).
 
     Raises
     ------
@@ -132,6 +139,7 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
     every_order, (circuit, one_frequency) = circuit, analysis_frequency_only(circuit)
     sources, line, group = _source(circuit, source)
     target = _target(target_pf)
+    ratings = parse_ratings(ratings)
     for value, what in ((rated_voltage, "rated voltage"), (rated_frequency, "rated frequency")):
         if value is not None and not (isinstance(value, (int, float)) and
                                       math.isfinite(value) and value > 0):
@@ -200,6 +208,12 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
             "a capacitor at this place cannot supply the reactive power the source sees "
             "(it resonates with the load instead); try a place nearer the source, or the "
             "leading target", line)
+    rms = 1.0 if circuit.amplitudes == "rms" else 1.0 / math.sqrt(2.0)
+    result["standard_sizes"] = standard_sizes(
+        circuit, source=source, group=group, legs=place["legs"], names=names,
+        capacitance=capacitance, operating_v=math.sqrt(mean_square) * rms,
+        rated_voltage=rated_voltage, rated_frequency=rated_frequency, target=target,
+        leading=leading, ratings=ratings)
     if one_frequency is not None:
         result["warnings"].append(one_frequency.as_dict())
         if rated_voltage is not None:

@@ -177,7 +177,8 @@ def correction_answer(text: str, ask: dict, settings: Settings) -> dict:
     result = correct_power_factor(circuit, ask["source"], ask["target"],
                                   at=correction_place(ask.get("at"), ask.get("across")),
                                   leading=bool(ask.get("leading")),
-                                  rated_voltage=ask.get("rated_voltage"), bank=ask.get("bank"))
+                                  rated_voltage=ask.get("rated_voltage"), bank=ask.get("bank"),
+                                  ratings=ask.get("ratings_kvar"))
     answer = dict(result)
     answer["display"] = correction_display(result)
     return answer

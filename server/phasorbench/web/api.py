@@ -196,6 +196,10 @@ class CorrectionAsk(BaseModel):
     rated_voltage: float | None = Field(
         None, description="rated rms voltage of each unit, V: checks its duty against the "
                           "continuous limits of IEEE Std 18-2002")
+    ratings_kvar: Text | list[float] | None = Field(
+        None, description="standard bank ratings in kvar at the rated voltage (a list, or "
+                          "text such as '5, 7.5, 10'): the next one down and up from the "
+                          "exact answer are re-solved; default common ratings")
 
 
 class PortAsk(BaseModel):
@@ -336,7 +340,7 @@ async def correct(body: CorrectionBody, request: Request):
     a capacitor there cannot reach.
     """
     ask = body.model_dump(include={"source", "target", "at", "across", "bank", "leading",
-                                   "rated_voltage"})
+                                   "rated_voltage", "ratings_kvar"})
     return await run_job(request, answers.correction_answer, body.netlist, ask)
 
 

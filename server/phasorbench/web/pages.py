@@ -10,6 +10,8 @@ from fastapi import Request
 
 from .. import __version__
 from ..presentation.cautions import CAUTIONS, SCOPE_NOTE
+from ..presentation.formatting import plain
+from ..tools.standard_sizes import DEFAULT_RATINGS_KVAR
 
 
 #: Headers of every page: scripts and data from this server only, no framing by other
@@ -41,6 +43,7 @@ async def workbench(request: Request):
         "max_elements": settings.max_elements,
         "max_view_elements": settings.max_view_elements,
         "request_timeout_ms": int(settings.page_timeout_s * 1000),
+        "standard_ratings": ", ".join(plain(q, 6) for q in DEFAULT_RATINGS_KVAR),
     }
     return _templates(request).TemplateResponse(request, "workbench.html", context,
                                                 headers=PAGE_HEADERS)
