@@ -185,16 +185,29 @@ def test_all_zero_and_single_element():
     assert all(math.isfinite(float(c.get("cx"))) for c in root.iter(SVG + "circle"))
 
 
-def test_many_elements_cycle_colours():
+def test_every_element_of_a_picture_looks_different_and_is_in_the_key():
     lines = ["frequency 50 Hz", "Vs: voltage a -> 0 100 V"]
-    lines += [f"R{k}: resistor a -> 0 {10 * k} ohm" for k in range(1, 7)]
+    lines += [f"R{k}: resistor a -> 0 {10 * k} ohm" for k in range(1, 13)]
     result = solve_text("\n".join(lines))
-    names = [f"R{k}" for k in range(1, 7)]
-    arrows = _arrows(_parse(phasor_diagram_svg(result, names)))
-    colours = [arrows[n, "current"].get("stroke") for n in names]
-    # common practice, no source: a short palette repeats, neighbours differ
-    assert colours[4] == colours[0] and colours[5] == colours[1]
-    assert len(set(colours[:4])) == 4
+    names = [f"R{k}" for k in range(1, 13)]
+    root = _parse(phasor_diagram_svg(result, names))
+    arrows = _arrows(root)
+    looks = [(arrows[n, q].get("stroke"), arrows[n, q].get("stroke-dasharray"))
+             for n in names for q in ("voltage", "current")]
+    # common practice, no source: no two phasors of one picture drawn alike; colours first
+    # (twelve), then line styles, so colour is never the only cue
+    assert len(set(looks)) == len(looks)
+    assert len({arrows[n, "voltage"].get("stroke") for n in names[:6]}) == 6
+    # the key names every element drawn, each with its own line samples
+    keys = [e.get("data-entry") for e in _with_class(root, "g", "pb-key")]
+    assert keys == names
+    for g in _with_class(root, "g", "pb-key"):
+        v, i = list(g.iter(SVG + "line"))
+        n = g.get("data-entry")
+        assert (v.get("stroke"), v.get("stroke-dasharray")) == \
+            (arrows[n, "voltage"].get("stroke"), arrows[n, "voltage"].get("stroke-dasharray"))
+        assert (i.get("stroke"), i.get("stroke-dasharray")) == \
+            (arrows[n, "current"].get("stroke"), arrows[n, "current"].get("stroke-dasharray"))
 
 
 def test_unknown_or_no_names_raise():

@@ -33,6 +33,17 @@ PAIRS = (
 DASH_CURRENT = "7 4"
 DASH_POWER = "11 3 2 3"
 
+#: One colour pair per element of a phasor diagram: `PAIRS` and two more, twelve colours
+#: that differ in hue and lightness. Past them the colours come round again with other
+#: line styles (`LINE_STYLES`), so no two elements of one picture look alike.
+ELEMENT_PAIRS = PAIRS + (
+    ("#a11d21", "#4f9a3a"),  # crimson / leaf green
+    ("#6a4423", "#7474c8"),  # brown / periwinkle
+)
+#: (voltage, current) dash patterns, one set per round of `ELEMENT_PAIRS`: solid and
+#: dashed first, then long-dashed and dotted, then dash-dot and long-short.
+LINE_STYLES = ((None, DASH_CURRENT), ("14 4", "2 3"), ("12 3 3 3", "8 2 2 2"))
+
 _NICE_STEPS = (1.0, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0)
 
 

@@ -15,8 +15,9 @@ from collections.abc import Sequence
 from typing import NamedTuple
 
 from .. import formatting as fmt
-from ._svg import (DASH_CURRENT, GRID, GRID_STRONG, INK, PAIRS, nice_ceiling, num, svg_root,
-                   tag, text, title)
+from ._svg import (ELEMENT_PAIRS, GRID, GRID_STRONG, INK, LINE_STYLES, nice_ceiling, num,
+                   svg_root, tag, text, title)
+from .labels import ASCENT, DESCENT, Placer, leader, overlap, text_box, text_width
 
 __all__ = ["phasor_diagram_svg", "three_phase_svg"]
 
@@ -54,7 +55,7 @@ def _grid(cx: float, cy: float, radius: float) -> tuple[list[str], list[tuple]]:
     """Angle grid every 30° and two scale rings (half and full scale).
 
     Returns the grid shapes and the angle labels as ``(box, markup)`` pairs, so a label
-    that a tip label would cover can be left out (its neighbours still read).
+    that another label would cover can be left out (its neighbours still read).
     """
     out = [tag("circle", cx=cx, cy=cy, r=radius, fill="none", stroke=GRID_STRONG),
            tag("circle", cx=cx, cy=cy, r=radius / 2, fill="none", stroke=GRID,
@@ -70,26 +71,24 @@ def _grid(cx: float, cy: float, radius: float) -> tuple[list[str], list[tuple]]:
         c = math.cos(math.radians(deg))
         anchor = "start" if c > 0.3 else "end" if c < -0.3 else "middle"
         words = fmt.degrees(deg if deg <= 180 else deg - 360, 0)
-        w = 6.5 * len(words)
-        left = lx if anchor == "start" else lx - w if anchor == "end" else lx - w / 2
-        labels.append(((left, ly - 6, left + w, ly + 6),
+        labels.append((text_box(lx, ly, words, 11, anchor, dy_em=0.35),
                        text(lx, ly, words, halo=False, text_anchor=anchor, dy="0.35em",
                             fill="#666666", font_size=11, class_="pb-grid-label")))
     return out, labels
 
 
-def _free_direction(angles: list[float]) -> float:
-    """The 30°-sector middle farthest from every drawn arrow: where the ring labels go."""
-    best, best_gap = -75.0, -1.0
-    for k in range(12):
-        cand = 15.0 + 30.0 * k
-        gap = min((abs((cand - a + 180.0) % 360.0 - 180.0) for a in angles), default=180.0)
-        if gap > best_gap + 1e-9:
-            best, best_gap = cand, gap
-    return best
+def _free_directions(angles: list[float]) -> list[float]:
+    """The 30°-sector middles, farthest from every drawn arrow first: where the ring
+    labels go (the next one when labels already fill the first)."""
+    def gap(cand):
+        return min((abs((cand - a + 180.0) % 360.0 - 180.0) for a in angles), default=180.0)
+    order = [15.0 + 30.0 * k for k in range(12)]
+    # −75° (lower right) first among equals: the historical place of the scale values
+    order.sort(key=lambda c: (-round(gap(c), 9), (c - 285.0) % 360.0))
+    return order
 
 
-def _arrow(cx, cy, r, deg, colour, dashed, name, quantity, mag_text, ph_deg,
+def _arrow(cx, cy, r, deg, colour, dash, name, quantity, mag_text, ph_deg,
            data: dict | None = None) -> str:
     """One phasor: a shaft from the origin to the exact tip, a filled head, a hover title.
 
@@ -109,46 +108,33 @@ def _arrow(cx, cy, r, deg, colour, dashed, name, quantity, mag_text, ph_deg,
         title(words),
         tag("line", x1=cx, y1=cy, x2=x2, y2=y2, stroke="transparent", stroke_width=10),
         tag("line", x1=cx, y1=cy, x2=x2, y2=y2, stroke=colour, stroke_width=2.5,
-            stroke_dasharray=DASH_CURRENT if dashed else None, class_="pb-shaft",
+            stroke_dasharray=dash, class_="pb-shaft",
             **(data if data is not None else {"data_element": name}),
             data_quantity=quantity, data_deg=f"{ph_deg:.6g}"),
         tag("polygon", points=pts, fill=colour),
     ]), class_="pb-arrow")
 
 
-class _Labels:
-    """Places tip labels inside the picture, nudging a label that would cover another."""
+#: Tip labels are bold 12 px; their boxes are as tall as the face's ascent and descent.
+_TIP_SIZE = 12.0
+_TIP_H = (ASCENT + DESCENT) * _TIP_SIZE
 
-    def __init__(self, width: float, height: float) -> None:
-        self.width, self.height = width, height
-        self.boxes: list[tuple[float, float, float, float]] = []
 
-    def _box(self, cx, cy, r, deg, w, h):
-        c, s = math.cos(math.radians(deg)), math.sin(math.radians(deg))
-        x, y = _point(cx, cy, r, deg)
-        y += 4.0 - (5.0 if s > 0.35 else -6.0 if s < -0.35 else 0.0)
-        left = x if c > 0.35 else x - w if c < -0.35 else x - w / 2
-        # Past an edge: slide the label back in, and off the shaft (above or below it).
-        overflow = max(0.0, left + w - (self.width - 4)) - max(0.0, 4 - left)
-        if overflow:
-            left -= overflow
-            y += -14.0 if s >= 0 else 14.0
-        return (left, y - h + 3, left + w, y + 3)
-
-    def covers(self, box) -> bool:
-        """Whether ``box`` (left, top, right, bottom) overlaps a placed label."""
-        return any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3]
-                   for b in self.boxes)
-
-    def place(self, cx, cy, r, deg, words, colour) -> str:
-        w, h = 7.5 * len(words), 14.0  # bold 12 px text runs about 7.5 px a character
-        for extra in (0.0, 14.0, 28.0, 42.0, 56.0):
-            box = self._box(cx, cy, r + 10.0 + extra, deg, w, h)
-            if not self.covers(box):
-                break
-        self.boxes.append(box)
-        return text(box[0], box[3] - 3, words, fill=colour, font_weight="bold",
-                    class_="pb-tip-label")
+def _tip_label(placer: Placer, x: float, y: float, deg: float, words: str,
+               colour: str) -> list[str]:
+    """A tip label where it covers no other label, with a leader when it had to move."""
+    found = placer.around(x, y, deg, text_width(words, _TIP_SIZE, bold=True), _TIP_H)
+    if found is None:
+        return []          # no room anywhere: the key and the arrow's hover title name it
+    box, moved = found
+    out = []
+    line = leader(box, x, y) if moved else None
+    if line is not None:
+        out.append(tag("line", x1=line[0], y1=line[1], x2=line[2], y2=line[3], stroke=colour,
+                       stroke_width=0.8, stroke_opacity=0.8, class_="pb-leader"))
+    out.append(text(box[0], box[1] + ASCENT * _TIP_SIZE, words, fill=colour,
+                    font_weight="bold", class_="pb-tip-label"))
+    return out
 
 
 def _merge_tips(tips):
@@ -196,8 +182,9 @@ def _angle_note(name: str, v: complex, i: complex, zero_v: bool, zero_i: bool,
     return f"{name}: {i_words} {word} {v_words} by {fmt.degrees(abs(phi))}"
 
 
-def _angle_arc(cx, cy, rv, ri, v: complex, i: complex) -> list[str]:
-    """A small arc from V's direction to I's, the short way round, with its angle."""
+def _angle_arc(cx, cy, rv, ri, v: complex, i: complex, placer: Placer) -> list[str]:
+    """A small arc from V's direction to I's, the short way round, with its angle placed
+    clear of the other labels (first of them, next to the centre)."""
     dv, di = _deg(v), _deg(i)
     phi = (di - dv + 180.0) % 360.0 - 180.0
     if abs(phi) < 0.5:
@@ -207,11 +194,21 @@ def _angle_arc(cx, cy, rv, ri, v: complex, i: complex) -> list[str]:
     x2, y2 = _point(cx, cy, r, di)
     sweep = 0 if phi > 0 else 1  # counter-clockwise on screen is SVG's negative sweep
     path = f"M {num(x1)} {num(y1)} A {num(r)} {num(r)} 0 0 {sweep} {num(x2)} {num(y2)}"
-    lx, ly = _point(cx, cy, r + 12.0, dv + phi / 2)
-    return [tag("path", d=path, fill="none", stroke="#555555", stroke_width=1.2,
-                class_="pb-angle-arc"),
-            text(lx, ly, fmt.degrees(abs(phi)), text_anchor="middle", dy="0.35em",
-                 font_size=11, fill="#444444")]
+    out = [tag("path", d=path, fill="none", stroke="#555555", stroke_width=1.2,
+               class_="pb-angle-arc")]
+    words = fmt.degrees(abs(phi))
+    mx, my = _point(cx, cy, r, dv + phi / 2)
+    found = placer.around(mx, my, dv + phi / 2, text_width(words, 11), (ASCENT + DESCENT) * 11,
+                          rings=(4.0, 10.0, 18.0, 28.0, 40.0, 54.0, 70.0))
+    if found is not None:
+        box, moved = found
+        line = leader(box, mx, my) if moved else None
+        if line is not None:
+            out.append(tag("line", x1=line[0], y1=line[1], x2=line[2], y2=line[3],
+                           stroke="#555555", stroke_width=0.8, class_="pb-leader"))
+        out.append(text(box[0], box[1] + ASCENT * 11, words, font_size=11, fill="#444444",
+                        class_="pb-angle-value"))
+    return out
 
 
 def phasor_diagram_svg(result: dict, names: Sequence[str], width: int = 520,
@@ -267,30 +264,85 @@ class _Pair(NamedTuple):
     data: dict | None = None
 
 
+def _styles(k: int) -> tuple[str, str, str | None, str | None]:
+    """(voltage colour, current colour, voltage dash, current dash) of entry ``k``."""
+    v_colour, i_colour = ELEMENT_PAIRS[k % len(ELEMENT_PAIRS)]
+    v_dash, i_dash = LINE_STYLES[(k // len(ELEMENT_PAIRS)) % len(LINE_STYLES)]
+    return v_colour, i_colour, v_dash, i_dash
+
+
+def _key_name(pair: "_Pair") -> str:
+    return pair.v_label if pair.v_label == pair.i_label else f"{pair.v_label} / {pair.i_label}"
+
+
+def _key_rows(data: list["_Pair"], width: float) -> list[list[tuple[float, int]]]:
+    """The key's entries flowed into rows: ``[(x, index into data)]`` per row."""
+    rows, row, x = [], [], _SIDE + text_width("shown:", 12) + 8
+    start = x
+    for k, pair in enumerate(data):
+        w = _KEY_SWATCH + text_width(_key_name(pair), 12) + 14
+        if row and x + w > width - _SIDE:
+            rows.append(row)
+            row, x = [], start
+        row.append((x, k))
+        x += w
+    if row:
+        rows.append(row)
+    return rows
+
+
+#: Width of a key entry's two line samples (voltage, then current) and the gap after.
+_KEY_SWATCH = 46.0
+_ROW = 18.0
+
+
 def _diagram(result: dict, data: list[_Pair], width: int, height: int, caption: str,
              label: str) -> str:
-    """The picture itself: scales, grid, one colour pair per entry of ``data``."""
+    """The picture itself: scales, grid, one colour pair per entry of ``data``, a key
+    naming every entry, and labels placed so that none covers another."""
     vmax = max(abs(p.v) for p in data)
     imax = max(abs(p.i) for p in data)
     v_scale, i_scale = nice_ceiling(vmax), nice_ceiling(imax)
     # Round-off (a current of 1e-17 A beside amperes) is drawn as zero, not as a stub.
     v_zero, i_zero = fmt.ROUND_OFF * vmax, fmt.ROUND_OFF * imax
 
-    any_zero = any(abs(p.v) <= v_zero or abs(p.i) <= i_zero for p in data)
-    bottom = _BOTTOM + (18.0 if any_zero else 0.0)  # a third legend line names the dots
-    radius = min((width - 2 * _SIDE) / 2, (height - _TOP - bottom) / 2) - _LABEL_PAD
+    zeros = [f"{_SYMBOL[q]}({name})" for p in data
+             for q, z, name, floor in (("voltage", p.v, p.v_label, v_zero),
+                                       ("current", p.i, p.i_label, i_zero)) if abs(z) <= floor]
+    key_rows = _key_rows(data, width)
+    zero_rows = _zero_rows(zeros, width)
+    rows = 2 + len(zero_rows) + len(key_rows)
+    bottom = _BOTTOM + _ROW * (rows - 2)
+    radius = max(20.0, min((width - 2 * _SIDE) / 2, (height - _TOP - bottom) / 2) - _LABEL_PAD)
     cx, cy = width / 2, _TOP + (height - _TOP - bottom) / 2
+    placer = Placer(width, height)
     body, grid_labels = _grid(cx, cy, radius)
-    arrows, labels, zeros, angles, tips = [], _Labels(width, height), [], [], []
+
+    amps = "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
+    first = data[0]
+    zv0, zi0 = abs(first.v) <= v_zero, abs(first.i) <= i_zero
+    own = first.v_label == first.i_label == first.element
+    head = caption.format(frequency=fmt.eng(result.get("frequency_hz"), "Hz"), amps=amps)
+    note = _angle_note(first.element, first.v, first.i, zv0, zi0,
+                       None if own else (first.v_label, first.i_label))
+    fixed = [text(_SIDE, 18, head, font_weight="bold", class_="pb-caption"),
+             text(_SIDE, 36, note, class_="pb-angle")]
+    placer.add(text_box(_SIDE, 18, head, 12, bold=True))
+    placer.add(text_box(_SIDE, 36, note, 12))
+    legend, legend_boxes = _legend(height, width, v_scale, i_scale, data, key_rows, rows,
+                                   zero_rows)
+    for box in legend_boxes:
+        placer.add(box)
+
+    arrows, angles, tips = [], [], []
     for k, pair in enumerate(data):
-        colours = PAIRS[k % len(PAIRS)]
-        for quantity, z, name, scale, floor, colour in (
-                ("voltage", pair.v, pair.v_label, v_scale, v_zero, colours[0]),
-                ("current", pair.i, pair.i_label, i_scale, i_zero, colours[1])):
+        v_colour, i_colour, v_dash, i_dash = _styles(k)
+        for quantity, z, name, scale, floor, colour, dash in (
+                ("voltage", pair.v, pair.v_label, v_scale, v_zero, v_colour, v_dash),
+                ("current", pair.i, pair.i_label, i_scale, i_zero, i_colour, i_dash)):
             unit = _UNIT[quantity]
             attributes = (pair.data or {}).get(quantity)
             if abs(z) <= floor:
-                zeros.append(f"{_SYMBOL[quantity]}({name})")
                 marks = attributes if attributes is not None else {"data_element": name}
                 arrows.append(tag("circle", title(f"{_SYMBOL[quantity]}({name}) = 0 {unit}"),
                                   cx=cx, cy=cy, r=4.0, fill=colour, **marks,
@@ -298,29 +350,30 @@ def _diagram(result: dict, data: list[_Pair], width: int, height: int, caption: 
                 continue
             r, deg = abs(z) / scale * radius, _deg(z)
             angles.append(deg)
-            arrows.append(_arrow(cx, cy, r, deg, colour, quantity == "current", name, quantity,
+            arrows.append(_arrow(cx, cy, r, deg, colour, dash, name, quantity,
                                  fmt.phasor(z, unit), deg, attributes))
             tips.append((r, deg, _SYMBOL[quantity], name, colour))
-    arrows += [labels.place(cx, cy, r, deg, words, colour)
-               for r, deg, words, colour in _merge_tips(tips)]
+    # Arrow heads and the origin stay uncovered by any label.
+    placer.add((cx - 4, cy - 4, cx + 4, cy + 4))
+    for r, deg, *_ in tips:
+        x, y = _point(cx, cy, r, deg)
+        placer.add((x - 3, y - 3, x + 3, y + 3))
 
-    first = data[0]
-    zv0, zi0 = abs(first.v) <= v_zero, abs(first.i) <= i_zero
+    labels = []
     if not (zv0 or zi0):
         body += _angle_arc(cx, cy, abs(first.v) / v_scale * radius,
-                           abs(first.i) / i_scale * radius, first.v, first.i)
-    body += [markup for box, markup in grid_labels if not labels.covers(box)]
-    body += _ring_labels(cx, cy, radius, _free_direction(angles), v_scale, i_scale)
+                           abs(first.i) / i_scale * radius, first.v, first.i, placer)
+    # Longest arrows first: their labels have the most room; short ones crowd the centre.
+    for r, deg, words, colour in sorted(_merge_tips(tips), key=lambda t: -t[0]):
+        x, y = _point(cx, cy, r, deg)
+        labels += _tip_label(placer, x, y, deg, words, colour)
+    rings = _ring_labels(cx, cy, radius, _free_directions(angles), v_scale, i_scale, placer)
+    body += [markup for box, markup in grid_labels if placer.place([box])]
+    body += rings
     body += arrows
-    amps = "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
-    body.append(text(_SIDE, 18, caption.format(frequency=fmt.eng(result.get("frequency_hz"), "Hz"),
-                                               amps=amps),
-                     font_weight="bold", class_="pb-caption"))
-    own = first.v_label == first.i_label == first.element
-    body.append(text(_SIDE, 36, _angle_note(first.element, first.v, first.i, zv0, zi0,
-                                            None if own else (first.v_label, first.i_label)),
-                     class_="pb-angle"))
-    body += _legend(height, v_scale, i_scale, zeros)
+    body += labels
+    body += fixed
+    body += legend
     return svg_root("pb-phasor", width, height, label, body, style=_STYLE)
 
 
@@ -387,32 +440,93 @@ def three_phase_svg(result: dict, group: str, width: int = 520, height: int = 52
                           "currents")
 
 
-def _ring_labels(cx, cy, radius, deg, v_scale, i_scale) -> list[str]:
-    """Scale values where each ring meets the free direction: V above, I below."""
-    v_colour, i_colour = PAIRS[0]
-    out = []
-    for frac in (0.5, 1.0):
-        x, y = _point(cx, cy, radius * frac, deg)
-        out.append(text(x, y - 2, fmt.eng(v_scale * frac, "V", 3), text_anchor="middle",
-                        fill=v_colour, font_size=11, class_="pb-scale pb-scale-voltage"))
-        out.append(text(x, y + 11, fmt.eng(i_scale * frac, "A", 3), text_anchor="middle",
-                        fill=i_colour, font_size=11, class_="pb-scale pb-scale-current"))
-    return out
+_SCALE_INK = "#3a3a3a"
 
 
-def _legend(height, v_scale, i_scale, zeros) -> list[str]:
-    """Line style key and full-scale values; names any phasor drawn as a dot."""
-    y1, y2 = (height - 48, height - 30) if zeros else (height - 30, height - 12)
+def _ring_labels(cx, cy, radius, directions, v_scale, i_scale, placer: Placer) -> list[str]:
+    """Scale values where each ring meets the freest direction with room for them: V
+    above, I below; nothing when no direction has room (the legend states full scale)."""
+    for deg in directions:
+        items = []
+        for frac in (0.5, 1.0):
+            x, y = _point(cx, cy, radius * frac, deg)
+            for words, yy, quantity in ((fmt.eng(v_scale * frac, "V", 3), y - 3, "voltage"),
+                                        (fmt.eng(i_scale * frac, "A", 3), y + 12, "current")):
+                items.append((text_box(x, yy, words, 11, "middle"), x, yy, words, quantity))
+        if all(placer.free(box) for box, *_ in items) and not any(
+                _overlaps_any(b, [o for o, *_ in items if o is not b]) for b, *_ in items):
+            for box, *_ in items:
+                placer.add(box)
+            return [text(x, yy, words, text_anchor="middle", fill=_SCALE_INK, font_size=11,
+                         class_=f"pb-scale pb-scale-{quantity}")
+                    for _, x, yy, words, quantity in items]
+    return []
+
+
+def _overlaps_any(box, others) -> bool:
+    return any(overlap(box, o) for o in others)
+
+
+def _zero_rows(zeros: list[str], width: float) -> list[str]:
+    """The line naming the phasors drawn as dots, wrapped to the picture's width."""
+    if not zeros:
+        return []
+    rows, line = [], "zero, drawn as a dot at the origin:"
+    room = width - 2 * _SIDE - 42
+    for k, name in enumerate(zeros):
+        piece = f" {name}" + ("," if k < len(zeros) - 1 else "")
+        if text_width(line + piece) > room and line.strip():
+            rows.append(line)
+            line = piece.lstrip()
+        else:
+            line += piece
+    rows.append(line)
+    return rows
+
+
+def _legend(height, width, v_scale, i_scale, data, key_rows, rows, zero_rows) -> tuple:
+    """Line style key with full-scale values, the line naming phasors drawn as dots, and
+    the key of every entry drawn (its voltage and current line samples, then its name).
+
+    Returns ``(markup, boxes)``.
+    """
     x0 = _SIDE
-    out = [tag("line", x1=x0, y1=y1 - 4, x2=x0 + 34, y2=y1 - 4, stroke=INK, stroke_width=2.5),
-           text(x0 + 42, y1, f"voltage (solid): outer ring = {fmt.eng(v_scale, 'V', 3)}",
-                halo=False, class_="pb-legend"),
-           tag("line", x1=x0, y1=y2 - 4, x2=x0 + 34, y2=y2 - 4, stroke=INK, stroke_width=2.5,
-               stroke_dasharray=DASH_CURRENT),
-           text(x0 + 42, y2, f"current (dashed): outer ring = {fmt.eng(i_scale, 'A', 3)}",
-                halo=False, class_="pb-legend")]
-    if zeros:
-        out.append(tag("circle", cx=x0 + 17, cy=y2 + 14, r=4.0, fill=INK))
-        out.append(text(x0 + 42, y2 + 18, "zero, drawn as a dot at the origin: " + ", ".join(zeros),
-                        halo=False, class_="pb-legend"))
-    return out
+    ys = [height - 12 - _ROW * (rows - 1 - k) for k in range(rows)]
+    styles = {_styles(k)[2:] for k in range(len(data))}
+    v_words = "solid" if all(v is None for v, _ in styles) else "solid, long-dashed"
+    i_words = "dashed" if len(styles) == 1 else "dashed, dotted"
+    v_text = f"voltage ({v_words}): outer ring = {fmt.eng(v_scale, 'V', 3)}"
+    i_text = f"current ({i_words}): outer ring = {fmt.eng(i_scale, 'A', 3)}"
+    out = [tag("line", x1=x0, y1=ys[0] - 4, x2=x0 + 34, y2=ys[0] - 4, stroke=INK,
+               stroke_width=2.5),
+           text(x0 + 42, ys[0], v_text, halo=False, class_="pb-legend"),
+           tag("line", x1=x0, y1=ys[1] - 4, x2=x0 + 34, y2=ys[1] - 4, stroke=INK,
+               stroke_width=2.5, stroke_dasharray=LINE_STYLES[0][1]),
+           text(x0 + 42, ys[1], i_text, halo=False, class_="pb-legend")]
+    boxes = [(x0, ys[0] - 12, x0 + 42 + text_width(v_text), ys[0] + 4),
+             (x0, ys[1] - 12, x0 + 42 + text_width(i_text), ys[1] + 4)]
+    at = 2
+    for n, words in enumerate(zero_rows):
+        y = ys[at]
+        if n == 0:
+            out.append(tag("circle", cx=x0 + 17, cy=y - 4, r=4.0, fill=INK))
+        out.append(text(x0 + 42, y, words, halo=False, class_="pb-legend"))
+        boxes.append((x0, y - 12, x0 + 42 + text_width(words), y + 4))
+        at += 1
+    for n, row in enumerate(key_rows):
+        y = ys[at + n]
+        if n == 0:
+            out.append(text(x0, y, "shown:", halo=False, class_="pb-legend pb-key-head"))
+        for x, k in row:
+            v_colour, i_colour, v_dash, i_dash = _styles(k)
+            name = _key_name(data[k])
+            out.append(tag("g", "".join([
+                tag("line", x1=x, y1=y - 4, x2=x + 18, y2=y - 4, stroke=v_colour,
+                    stroke_width=2.5, stroke_dasharray=v_dash),
+                tag("line", x1=x + 22, y1=y - 4, x2=x + 40, y2=y - 4, stroke=i_colour,
+                    stroke_width=2.5, stroke_dasharray=i_dash),
+                text(x + _KEY_SWATCH, y, name, halo=False, class_="pb-legend")]),
+                class_="pb-key", data_entry=name))
+        boxes.append((x0, y - 12, width - _SIDE, y + 4))
+    return out, boxes
+
