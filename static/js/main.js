@@ -9,6 +9,7 @@ import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
 import {createHarmonics} from "./harmonics.js";
 import {createPort} from "./port.js";
+import {setupFiles} from "./files.js";
 import {exportSheet} from "./sheet-export.js";
 import {setupTableButtons} from "./tables-out.js";
 import {loadSaved, save} from "./store.js";
@@ -41,6 +42,7 @@ const state = {
 };
 
 let editor;
+let files;               // opening, saving and storing circuits (files.js)
 let tools;               // the Tools panel: {tabs, correction, port, sweep, threePhase}
 const limit = () => Number(document.body.dataset.maxViewElements) || 12;
 
@@ -436,6 +438,7 @@ async function fillSamples() {
   menu.addEventListener("change", () => {
     const sample = samples.find((s) => s.name === menu.value);
     if (!sample) return;
+    files.forget();
     loadText(sample.netlist, sample.name);
     menu.value = sample.name;   // it keeps naming the sample until the text is edited
     solve();
@@ -527,6 +530,16 @@ async function init() {
   state.shown = Array.isArray(saved.shown) ? saved.shown : [];
   state.expanded = Array.isArray(saved.expanded) ? saved.expanded.filter((n) => typeof n === "string") : [];
   setupTools();
+  files = setupFiles({
+    getText: () => editor.getText(),
+    open(text) {                        // a file from disk or a stored circuit
+      loadText(text);
+      $("samples").value = "";
+      showEdited();
+      solve();
+    },
+    say: showBanner,
+  });
   if (saved.sort && typeof saved.sort === "object") state.sort = saved.sort;
 
   const textarea = $("editor-text");
