@@ -41,18 +41,24 @@ async function postJSON(path, body, signal) {
   return {ok: response.ok, status: response.status, data};
 }
 
+// The page's RMS / peak switch: how the answers' magnitudes are read (null: as the
+// circuit's `amplitudes` line says). Every answer that shows magnitudes asks for it.
+let shownAs = null;
+export function showMagnitudesAs(kind) { shownAs = kind === "rms" || kind === "peak" ? kind : null; }
+const show = () => (shownAs ? {show: shownAs} : {});
+
 export const postCheck = (netlist, signal) => postJSON("/api/check", {netlist}, signal);
 /** `names`: elements the page shows; the answer's display.present lists those the circuit has. */
 export const postSolve = (netlist, signal, names = []) =>
-  postJSON("/api/solve", {netlist, contract: false, ...(names.length ? {names} : {})}, signal);
+  postJSON("/api/solve", {netlist, contract: false, ...(names.length ? {names} : {}), ...show()}, signal);
 /** `window`: {table, start, count, sort, direction, find} (see /docs). */
-export const postRows = (netlist, window, signal) => postJSON("/api/rows", {netlist, ...window}, signal);
+export const postRows = (netlist, window, signal) => postJSON("/api/rows", {netlist, ...window, ...show()}, signal);
 export const postPhasors = (netlist, elements, size, signal) =>
-  postJSON("/api/phasors", {netlist, elements, ...size}, signal);
+  postJSON("/api/phasors", {netlist, elements, ...size, ...show()}, signal);
 export const postWaveforms = (netlist, elements, size, signal) =>
-  postJSON("/api/waveforms", {netlist, elements, ...size}, signal);
+  postJSON("/api/waveforms", {netlist, elements, ...size, ...show()}, signal);
 export const postThreePhase = (netlist, group, size, signal) =>
-  postJSON("/api/three-phase", {netlist, group, ...size}, signal);
+  postJSON("/api/three-phase", {netlist, group, ...size, ...show()}, signal);
 /** `ask`: {source, target, leading, at | across, bank, rated_voltage} (see /docs). */
 export const postCorrect = (netlist, ask, signal) => postJSON("/api/correct", {netlist, ...ask}, signal);
 /** `ask`: {probe, keep, solve_for} (see /docs). */

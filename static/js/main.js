@@ -3,7 +3,8 @@
 // State lives in one object; what must survive a reload (the circuit text and the
 // view settings) is written to localStorage on every change.
 
-import {getSamples, postCheck, postPhasors, postRows, postSolve, postWaveforms} from "./api.js";
+import {getSamples, postCheck, postPhasors, postRows, postSolve, postWaveforms,
+        showMagnitudesAs} from "./api.js";
 import {createCorrection} from "./correction.js";
 import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
@@ -288,6 +289,7 @@ function renderResults() {
   if (owner && !state.expanded.includes(owner)) state.expanded.push(owner);
   save({selected: state.selected, shown: state.shown, expanded: state.expanded});
   renderFacts(display.facts);
+  markMagnitudes(display.facts.amplitudes_shown);
   $("branch-table").closest(".table-wrap").scrollTop = 0;
   drawBranchTable();
   showCount(display.element_total);
@@ -429,6 +431,29 @@ async function loadViews({waveform = true} = {}) {
   } catch (err) { ignoreAbort(err); }
 }
 
+/** The RMS / peak switch shows which way the magnitudes on screen are read. */
+function markMagnitudes(shown) {
+  for (const b of document.querySelectorAll("#amps-switch button")) {
+    b.setAttribute("aria-pressed", b.dataset.amps === shown ? "true" : "false");
+  }
+}
+
+/** Read the answer's magnitudes the other way: the tables, summary and pictures again. */
+async function switchMagnitudes(kind) {
+  showMagnitudesAs(kind);
+  save({magnitudes: kind});
+  if (!state.answer) { markMagnitudes(kind); return; }
+  const {signal, seq} = abortable("solve");
+  try {
+    const {ok, data} = await postSolve(state.solvedText, signal);
+    if (seq !== state.seq.solve) return;
+    if (!ok) { showBanner(`Not shown: ${problemText(data)}`, "error"); return; }
+    state.answer = data;
+    renderResults();
+    if (tools.tabs.current === "three-phase") tools.threePhase.load();
+  } catch (err) { ignoreAbort(err); }
+}
+
 // ---- samples and start-up ---------------------------------------------------------
 
 async function fillSamples() {
@@ -526,6 +551,10 @@ async function exportCurrentSheet() {
 async function init() {
   editor = createEditor({textarea: $("editor-text"), gutter: $("gutter"), backdrop: $("backdrop")});
   const saved = loadSaved();
+  showMagnitudesAs(saved.magnitudes);
+  for (const b of document.querySelectorAll("#amps-switch button")) {
+    b.addEventListener("click", () => switchMagnitudes(b.dataset.amps));
+  }
   state.selected = saved.selected || null;
   state.shown = Array.isArray(saved.shown) ? saved.shown : [];
   state.expanded = Array.isArray(saved.expanded) ? saved.expanded.filter((n) => typeof n === "string") : [];

@@ -35,11 +35,12 @@ export function createThreePhase({onSelect}) {
   }
 
   function renderValues(d) {
-    const phases = smallTable(`Phases of ${d.name}`, ["Element", "|V| ∠", "|I| ∠", "P", "Q", "PF"],
+    const m = d.magnitudes || "RMS";
+    const phases = smallTable(`Phases of ${d.name}`, ["Element", `|V| ${m} ∠`, `|I| ${m} ∠`, "P", "Q", "PF"],
       d.phases.map((r) => [r.text.name, r.text.voltage, r.text.current, r.text.p, r.text.q, r.text.pf]));
-    const lines = smallTable("Lines", ["Line", "line current", "between", "line-to-line |V| ∠"],
+    const lines = smallTable("Lines", ["Line", `line current (${m})`, "between", `line-to-line |V| ${m} ∠`],
       d.lines.map((l) => [l.line, l.current, l.pair, l.voltage]), (k) => k !== 2);
-    const sequence = smallTable("Sequence values (Fortescue)", ["Sequence", "V", "I"],
+    const sequence = smallTable("Sequence values (Fortescue)", ["Sequence", `V ${m}`, `I ${m}`],
       d.sequence.map((s) => [s.name, s.voltage, s.current]));
     fill($("tp-values"),
       el("p", {class: "tool-heading"}, el("b", {}, d.heading)),

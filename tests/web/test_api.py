@@ -486,3 +486,22 @@ def test_error_answers_stay_small_whatever_the_request(api):
         body = strict_json(r)
         assert len(body["errors"]) <= 101 and "more like these" in body["errors"][-1]["message"]
         assert len(r.content) < 64 * 1024, len(r.content)
+
+
+def test_the_magnitudes_can_be_shown_as_peak_or_rms(api):
+    # check-values C1: 10 µF on 230 V RMS, 50 Hz: 0.722566 A; shown as peak, √2 times
+    # each (textbook V_peak = √2·V_RMS) and the same power
+    plain = api.post("/api/solve", json={"netlist": CAP_CIRCUIT}).json()
+    peak = api.post("/api/solve", json={"netlist": CAP_CIRCUIT, "show": "peak"}).json()
+    assert peak["amplitudes"] == "peak" and peak["amplitudes_input"] == "rms"
+    assert peak["elements"]["C1"]["current"]["mag"] == pytest.approx(0.722566 * 2 ** 0.5,
+                                                                     rel=1e-6)
+    assert peak["elements"]["C1"]["q_var"] == plain["elements"]["C1"]["q_var"]
+    rows = api.post("/api/rows", json={"netlist": CAP_CIRCUIT, "table": "nodes",
+                                       "show": "peak"}).json()["rows"]
+    assert {r["name"]: r["text"]["voltage"] for r in rows}["a"] == "325.3 V ∠0.00°"
+    svg = api.post("/api/phasors", json={"netlist": CAP_CIRCUIT, "elements": ["C1"],
+                                         "show": "peak"}).json()["svg"]
+    assert "peak magnitudes" in svg and "outer ring = 400 V" in svg
+    bad = api.post("/api/solve", json={"netlist": CAP_CIRCUIT, "show": "average"})
+    assert bad.status_code == 422                    # common practice, no source

@@ -71,11 +71,18 @@ def balance_check(result: dict) -> dict:
 def facts(result: dict) -> dict:
     """The header's facts: frequency, amplitude convention, sign rule, balance."""
     amplitudes = result.get("amplitudes", "rms")
+    words = ("magnitudes are RMS (S = V·I*)" if amplitudes == "rms"
+             else "magnitudes are peak (S = ½·V·I*)")
+    own = result.get("amplitudes_input")
+    if own and own != amplitudes:
+        words = (f"shown as {'RMS' if amplitudes == 'rms' else 'peak'} "
+                 f"(S = {'V·I*' if amplitudes == 'rms' else '½·V·I*'}); input in "
+                 f"{'RMS' if own == 'rms' else 'peak'}")
     return {
         "title": result.get("title"),
         "frequency": eng(result.get("frequency_hz"), "Hz"),
-        "amplitudes": ("magnitudes are RMS (S = V·I*)" if amplitudes == "rms"
-                       else "magnitudes are peak (S = ½·V·I*)"),
+        "amplitudes": words,
+        "amplitudes_shown": amplitudes,
         "sign": SIGN_CONVENTION,
         "balance": balance_check(result),
     }
@@ -131,6 +138,19 @@ def power_summary(result: dict) -> dict:
     return {"sources": sources, "totals": totals, "groups": groups}
 
 
+#: Columns holding voltage or current magnitudes: their headings say RMS or peak.
+_MAGNITUDE_COLUMNS = {"voltage": ("|V|", "|V|"), "current": ("|I|", "|I|"), "rect": ("V", "V")}
+
+
+def _headed(key: str, heading: str, result: dict) -> str:
+    """A table heading with the convention of its magnitudes: ``|V| RMS ∠``."""
+    if key not in _MAGNITUDE_COLUMNS:
+        return heading
+    word = "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
+    symbol = _MAGNITUDE_COLUMNS[key][0]
+    return heading.replace(symbol, f"{symbol} {word}", 1)
+
+
 def solve_display(result: dict) -> dict:
     """Everything the page shows of a solve, as strings (and raw numbers for sorting).
 
@@ -141,11 +161,12 @@ def solve_display(result: dict) -> dict:
     first = first_rows(result)
     return {
         "facts": facts(result),
-        "element_columns": [{"key": k, "heading": h} for k, h in ELEMENT_COLUMNS],
+        "element_columns": [{"key": k, "heading": _headed(k, h, result)}
+                            for k, h in ELEMENT_COLUMNS],
         "elements": first["elements"],
         "element_total": first["element_total"],
         "groups": group_rows(result),
-        "node_columns": [{"key": k, "heading": h} for k, h in NODE_COLUMNS],
+        "node_columns": [{"key": k, "heading": _headed(k, h, result)} for k, h in NODE_COLUMNS],
         "nodes": first["nodes"],
         "node_total": first["node_total"],
         "rows_partial": first["partial"],
@@ -335,6 +356,7 @@ def group_detail(result: dict, name: str) -> dict:
     ]
     return {
         "name": name,
+        "magnitudes": "RMS" if result.get("amplitudes", "rms") == "rms" else "peak",
         "heading": f"{name}: {g.get('kind', '')} {g.get('connection', '')}, lines "
                    f"{_group_terminals(name, g)}",
         "note": (f"Sequence values are Fortescue's of the {what} voltages and currents, "

@@ -16,6 +16,7 @@ from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
 from ..presentation.display import (correction_display, group_detail, group_rows, port_display,
                                     solve_display, waveform_display)
+from ..presentation.amplitudes import shown_as
 from ..presentation.rows import table_window
 from .limits import check_size, element_bound
 from .settings import Settings
@@ -63,7 +64,13 @@ def _solved(text: str, settings: Settings) -> dict:
     return SOLVED.get(text, _solve, size=element_bound(text))
 
 
-def solve_answer(text: str, contract: bool, names: list[str], settings: Settings) -> dict:
+def _shown(text: str, settings: Settings, show: str | None) -> dict:
+    """The solved result with its magnitudes as ``show`` says (the page's RMS / peak switch)."""
+    return shown_as(_solved(text, settings), show)
+
+
+def solve_answer(text: str, contract: bool, names: list[str], show: str | None,
+                 settings: Settings) -> dict:
     """The contract dict of ``text`` with a ``display`` field of formatted strings.
 
     Without ``contract`` the per-element and per-node maps are left out: the answer the
@@ -71,7 +78,7 @@ def solve_answer(text: str, contract: bool, names: list[str], settings: Settings
     that are elements of the circuit (a big circuit's answer has only its first rows, so
     the page learns this way whether the element it shows is still there).
     """
-    result = _solved(text, settings)
+    result = _shown(text, settings, show)
     if contract:
         answer = dict(result)
     else:
@@ -88,7 +95,7 @@ def rows_answer(text: str, window: dict, settings: Settings) -> dict:
     ``window`` holds ``table``, ``start``, ``count``, ``sort``, ``direction``, ``find``
     and ``expanded`` (the three-phase blocks shown open) as the request gave them.
     """
-    result = _solved(text, settings)
+    result = _shown(text, settings, window.get("show"))
     return table_window(result, window["table"], window["start"], window["count"],
                         window.get("sort"), window.get("direction", 1), window.get("find", ""),
                         expanded=window.get("expanded") or (), block_rows=group_rows)
@@ -118,13 +125,15 @@ def _picked(result: dict, names: list[str], settings: Settings) -> list[str]:
     return picked
 
 
-def waveforms_answer(text: str, names: list[str], size: dict, settings: Settings) -> dict:
+def waveforms_answer(text: str, names: list[str], size: dict, show: str | None,
+                     settings: Settings) -> dict:
     """Samples of v(t), i(t), p(t) and their SVG for each named element.
 
     ``{"elements": {name: {"samples": {...}, "svg": "<svg ...>", "display": {...}}},
     "order": [names]}``; ``size`` may hold the picture's ``width`` and ``height`` in px.
+    The instantaneous values are the same whichever way ``show`` reads the magnitudes.
     """
-    result = _solved(text, settings)
+    result = _shown(text, settings, show)
     picked = _picked(result, names, settings)
     out = {}
     for name in picked:
@@ -134,23 +143,26 @@ def waveforms_answer(text: str, names: list[str], size: dict, settings: Settings
     return {"elements": out, "order": picked}
 
 
-def phasors_answer(text: str, names: list[str], size: dict, settings: Settings) -> dict:
+def phasors_answer(text: str, names: list[str], size: dict, show: str | None,
+                   settings: Settings) -> dict:
     """The phasor diagram SVG of the named elements: ``{"svg": "...", "elements": [...]}``.
 
-    ``size`` may hold the picture's ``width`` and ``height`` in px.
+    ``size`` may hold the picture's ``width`` and ``height`` in px; ``show`` the
+    magnitudes' convention (None: the circuit's own).
     """
-    result = _solved(text, settings)
+    result = _shown(text, settings, show)
     picked = _picked(result, names, settings)
     return {"svg": phasor_diagram_svg(result, picked, **size), "elements": picked}
 
 
-def three_phase_answer(text: str, group: str, size: dict, settings: Settings) -> dict:
+def three_phase_answer(text: str, group: str, size: dict, show: str | None,
+                       settings: Settings) -> dict:
     """The three-phase view of one block: ``{"group", "svg", "display"}``.
 
     ``display`` is ``display.group_detail`` (phase rows, line values, sequence values,
     totals); ``size`` may hold the picture's ``width`` and ``height`` in px.
     """
-    result = _solved(text, settings)
+    result = _shown(text, settings, show)
     groups = result.get("groups") or {}
     if group not in groups:
         hint = ("blocks of this circuit: " + ", ".join(groups)) if groups else \

@@ -120,8 +120,16 @@ ERROR_RESPONSES = {
 MAX_ASKED = 100
 
 
+#: The page's RMS / peak switch (``presentation/amplitudes.py``).
+SHOW_FIELD = Field(None, description="show voltage and current magnitudes as rms or peak "
+                                     "values (default: as the circuit's amplitudes line "
+                                     "says; powers are the same either way)")
+
+
 class SolveBody(CircuitBody):
     """A circuit text, and whether the answer carries the whole results contract."""
+
+    show: Literal["rms", "peak"] | None = SHOW_FIELD
 
     contract: bool = Field(True, description="false: leave the per-element and per-node maps "
                                              "out (the page reads the display rows only)")
@@ -138,6 +146,7 @@ class RowsBody(CircuitBody):
     """A circuit text and the window of one of its tables to show."""
 
     table: Literal["elements", "nodes"] = Field("elements", description="the branch or the node table")
+    show: Literal["rms", "peak"] | None = SHOW_FIELD
     start: int = Field(0, ge=0, description="first row of the window (0-based, in the order asked)")
     count: int = Field(ROW_WINDOW, ge=0, le=MAX_WINDOW, description="rows in the window")
     sort: str | None = Field(None, description="column the branch table is sorted by "
@@ -154,6 +163,7 @@ class ViewBody(CircuitBody):
     """A circuit text, the elements a picture should show, and optionally its size."""
 
     elements: list[Text] = Field(description="element names, as in the circuit's results")
+    show: Literal["rms", "peak"] | None = SHOW_FIELD
     width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
                               description="picture width in px (the page sends its panel's width "
                                           "so text is drawn at its true size)")
@@ -168,6 +178,7 @@ class GroupViewBody(CircuitBody):
     """A circuit text, one of its three-phase blocks, and optionally the picture's size."""
 
     group: Text = Field(description="a three-phase block (voltage3 or load3) of the circuit")
+    show: Literal["rms", "peak"] | None = SHOW_FIELD
     width: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
                               description="picture width in px")
     height: int | None = Field(None, ge=MIN_PICTURE_PX, le=MAX_PICTURE_PX,
@@ -299,7 +310,8 @@ async def solve(body: SolveBody, request: Request):
     ``display`` (``rows_partial`` true); ``POST /api/rows`` gives the others.
     422 ``{"errors": [...], "warnings": [...]}`` when the circuit has errors.
     """
-    return await run_job(request, answers.solve_answer, body.netlist, body.contract, body.names)
+    return await run_job(request, answers.solve_answer, body.netlist, body.contract, body.names,
+                         body.show)
 
 
 async def rows(body: RowsBody, request: Request):
@@ -308,27 +320,27 @@ async def rows(body: RowsBody, request: Request):
     ``nodes``; in a circuit with three-phase blocks, block rows and, for the blocks in
     ``expanded``, their phase rows, as ``rows.table_window`` says)."""
     window = body.model_dump(include={"table", "start", "count", "sort", "direction", "find",
-                                      "expanded"})
+                                      "expanded", "show"})
     return await run_job(request, answers.rows_answer, body.netlist, window)
 
 
 async def waveforms(body: ViewBody, request: Request):
     """v(t), i(t), p(t) of the named elements over two periods, samples and SVG each."""
     return await run_job(request, answers.waveforms_answer, body.netlist, body.elements,
-                         body.size())
+                         body.size(), body.show)
 
 
 async def phasors(body: ViewBody, request: Request):
     """The phasor diagram (SVG) of the named elements' voltages and currents."""
     return await run_job(request, answers.phasors_answer, body.netlist, body.elements,
-                         body.size())
+                         body.size(), body.show)
 
 
 async def three_phase(body: GroupViewBody, request: Request):
     """The three-phase view of one block: its phasor diagram (phase voltages and line
     currents) as SVG, and its phase, line and sequence values as display text."""
     return await run_job(request, answers.three_phase_answer, body.netlist, body.group,
-                         body.size())
+                         body.size(), body.show)
 
 
 async def correct(body: CorrectionBody, request: Request):
