@@ -117,6 +117,7 @@ export function createTabs(root, {onShow}) {
   const none = document.getElementById("tool-none");
   let current = null;
   let context = null;     // the tab the circuit on screen suggests, saved with a pick
+  let picked = null;      // the tab the person chose since the page was opened
 
   function mark(tab) {
     const all = [...root.querySelectorAll('[role="tab"]')];
@@ -136,7 +137,10 @@ export function createTabs(root, {onShow}) {
     mark(tab);
     if (focus) tab.focus();
     current = tab.dataset.tool;
-    if (remember) saveTool("panel", {tab: current, suggested: context});
+    if (remember) {
+      picked = current;
+      saveTool("panel", {tab: current, suggested: context});
+    }
     onShow(current);
   }
 
@@ -168,14 +172,15 @@ export function createTabs(root, {onShow}) {
     close,
     get current() { return current; },
     /**
-     * Open the tab worth opening for a circuit: the one the person last picked while
-     * the circuit on screen suggested the same (`suggested`, from the server's
-     * `display.tools`), else the suggestion itself (null: none open).
+     * Open the tab worth opening for a circuit: the one the person picked on this page,
+     * else one picked before for a circuit that suggested the same (`suggested`, from
+     * the server's `display.tools`), else the suggestion itself (null: none open).
      */
     open(suggested) {
       context = suggested ?? null;
       const saved = savedTool("panel");
-      const wanted = saved.tab && (saved.suggested ?? null) === context ? saved.tab : context;
+      const wanted = picked && tabs().some((t) => t.dataset.tool === picked) ? picked
+        : saved.tab && (saved.suggested ?? null) === context ? saved.tab : context;
       if (wanted && tabs().some((t) => t.dataset.tool === wanted)) {
         if (wanted !== current) show(wanted, {remember: false});
         else onShow(current);
