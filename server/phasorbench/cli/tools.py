@@ -214,7 +214,7 @@ def correction_text(r: dict) -> str:
 
 def _standard_text(r: dict) -> list[str]:
     """The standard ratings either side of the exact answer, each re-solved."""
-    from ..presentation.display import standard_sizes_display
+    from ..presentation.tools_display import standard_sizes_display
     shown = standard_sizes_display(r)
     if shown is None:
         return []

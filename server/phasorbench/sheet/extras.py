@@ -140,7 +140,7 @@ def tool_section(data: dict | None, tool: str, known=()) -> dict | None:
     if data is None:
         return None
     section = extra_section(data, _HEADINGS[tool], known)
-    from ..presentation.display import correction_display, port_display
+    from ..presentation.tools_display import correction_display, port_display
     try:
         shown = (correction_display if tool == "correction" else port_display)(data)
     except (KeyError, TypeError, AttributeError, ValueError):

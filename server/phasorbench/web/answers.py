@@ -14,10 +14,10 @@ from ..presentation.tables_out import table_text
 from ..errors import CircuitError, Diagnostic, answer
 from ..tools import correct_power_factor, correction_place, port_equivalent
 from ..waveforms import sample_element
-from ..presentation.display import (correction_display, group_detail, group_rows, port_display,
-                                    solve_display, waveform_display)
 from ..presentation.amplitudes import shown_as
+from ..presentation.display import group_detail, group_rows, solve_display, waveform_display
 from ..presentation.rows import table_window
+from ..presentation.tools_display import correction_display, port_display
 from .limits import check_size, element_bound
 from .settings import Settings
 from .solved import SolvedCache
@@ -183,7 +183,7 @@ def correction_answer(text: str, ask: dict, settings: Settings) -> dict:
 
     ``ask`` holds ``source``, ``target``, ``at``, ``across``, ``bank``, ``leading`` and
     ``rated_voltage`` as the request gave them. The answer is
-    ``tools.correct_power_factor``'s dict plus ``display`` (``display.correction_display``).
+    ``tools.correct_power_factor``'s dict plus ``display`` (``tools_display.correction_display``).
     """
     circuit = _read(text, settings)
     result = correct_power_factor(circuit, ask["source"], ask["target"],
