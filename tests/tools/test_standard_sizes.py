@@ -101,6 +101,11 @@ def test_an_edited_list_and_its_ends():
     assert r["standard_sizes"]["below"] is None           # nothing small enough
     r = correct_power_factor(circuit, "V1", 0.95, ratings=[0.5, 1])
     assert r["standard_sizes"]["above"] is None           # nothing big enough
+    # a rating past the float range of the solve: that size unsolved, the rest stands
+    r = correct_power_factor(circuit, "V1", 0.95, ratings=[1.5, 1e308])
+    assert r["standard_sizes"]["below"]["pf"] == pytest.approx(_pf(P, Q - 1500), abs=1e-12)
+    assert r["standard_sizes"]["above"]["pf"] is None
+    assert "not solved" in r["standard_sizes"]["above"]["error"]
     # common practice, no source: a rating is a positive number of kvar
     with pytest.raises(CircuitError) as info:
         correct_power_factor(circuit, "V1", 0.95, ratings="5, -1, ten")

@@ -169,7 +169,8 @@ def standard_sizes_display(r: dict) -> dict | None:
             "capacitance": f"{eng(size['capacitance_f'], 'F', 4)}{each}",
             "q": eng(size["q_var"], "var"),
             "pf": power_factor(size["pf"], size["pf_sense"]),
-            "meets": "✓ meets the target" if size["meets_target"] else "▲ short of the target",
+            "meets": (f"▲ {size['error']}" if size.get("error") else
+                      "✓ meets the target" if size["meets_target"] else "▲ short of the target"),
             "lines": list(size["circuit_lines"])})
     return {"heading": f"Standard bank ratings at {rated}, "
                        f"{eng(sizes['rated_frequency_hz'], 'Hz')}",

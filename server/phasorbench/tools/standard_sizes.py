@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 
-from ..errors import CircuitError, Diagnostic
+from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, Diagnostic
 from ..model import Element
 from ..results import contract
 from ..solver import solve
@@ -91,8 +91,9 @@ def standard_sizes(circuit, *, source: str, group, legs, names: Sequence[str],
         "exact_kvar", "below", "above"}``; ``below``/``above`` are None where the list has
         no such rating, else ``{"rating_kvar", "capacitance_f" (each unit), "units",
         "q_var" (supplied at the voltage the units see, from the re-solve), "pf",
-        "pf_sense", "meets_target", "circuit_lines"}``. A rating equal to the exact one
-        is both.
+        "pf_sense", "meets_target", "circuit_lines"}`` (a size the circuit cannot be
+        solved with has ``pf`` None and an ``error``). A rating equal to the exact one is
+        both.
     """
     values = parse_ratings(ratings)
     v_r = float(rated_voltage) if rated_voltage is not None else float(operating_v)
@@ -118,7 +119,15 @@ def _resolved(circuit, source, group, legs, names, rating_kvar, omega_r, v_r, ta
     """The circuit with a bank of ``rating_kvar`` at the place, solved: its source's PF."""
     each = rating_kvar * 1000.0 / len(legs) / (omega_r * v_r ** 2)
     added = tuple(Element(name, "capacitor", leg, each + 0j) for name, leg in zip(names, legs))
-    after = contract(solve(derived(circuit, add=added)))
+    try:
+        after = contract(solve(derived(circuit, add=added)))
+    except (CircuitError, *NUMERIC_RANGE_ERRORS) as exc:
+        # a rating far outside the circuit's scale: that size has no answer, the exact
+        # correction still stands
+        message = exc.diagnostics[0].message if isinstance(exc, CircuitError) else str(exc)
+        return {"rating_kvar": rating_kvar, "capacitance_f": each, "units": len(legs),
+                "q_var": None, "pf": None, "pf_sense": None, "meets_target": False,
+                "circuit_lines": [], "error": f"not solved with this bank: {message}"}
     entry = after["groups"][group.name] if group is not None else after["elements"][source]
     supplied = -sum(after["elements"][n]["q_var"] for n in names)
     pf, sense = entry["pf"], entry["pf_sense"]
