@@ -13,6 +13,10 @@ from phasorbench.studies.probes import parse_probes
 from phasorbench.workflow import read_circuit, solve_text
 
 
+#: Sections of the test ladder whose system is solved banded (unknowns ≥ BAND_MIN).
+BANDED = 30
+
+
 def _ladder(sections: int) -> str:
     lines = ["Vs: voltage n0 -> 0 230 V phase 10 deg", "Is: current 0 -> n3 2 A phase -40 deg"]
     for k in range(sections):
@@ -29,18 +33,22 @@ def _phasor(entry):
     return complex(entry["re"], entry["im"])
 
 
-@pytest.mark.parametrize("sections", [4, DENSE_LIMIT])     # dense path, sparse path
-def test_sweep_at_each_frequency_equals_the_single_solve(sections):
+# stacked dense path; banded path; sparse path with the first point's ordering kept
+@pytest.mark.parametrize("sections, frequencies", [
+    (4, [37.0, 50.0, 411.3]), (BANDED, [37.0, 50.0, 411.3]),
+    (DENSE_LIMIT, [37.0, 50.0, 411.3]),
+    (DENSE_LIMIT, list(np.geomspace(20.0, 2000.0, 9)))])
+def test_sweep_at_each_frequency_equals_the_single_solve(sections, frequencies):
     body = _ladder(sections)
     probes = ["V(n2)", f"V(n{sections})", "V(n1, n3)", "I(L1)", "I(Vs)", "I(F1)", "I(E1)",
               f"V(n{sections})/V(n1)"]
-    frequencies = [37.0, 50.0, 411.3]
     circuit = read_circuit("frequency 50 Hz\n" + body)
     engine = SweepEngine(circuit, parse_probes(probes, circuit))
-    assert engine.dense == (sections == 4) and engine.size > (0 if engine.dense else DENSE_LIMIT)
+    assert engine.dense == (sections != DENSE_LIMIT)
+    assert (engine._band is not None) == (sections == BANDED)
     response = engine.response(frequencies)
     for k, f in enumerate(frequencies):
-        solved = solve_text(f"frequency {f!r} Hz\n" + body)
+        solved = solve_text(f"frequency {float(f)!r} Hz\n" + body)
         node, element = solved["nodes"], solved["elements"]
         want = {"V(n2)": _phasor(node["n2"]), f"V(n{sections})": _phasor(node[f"n{sections}"]),
                 "V(n1, n3)": _phasor(node["n1"]) - _phasor(node["n3"]),
@@ -55,7 +63,7 @@ def test_sweep_at_each_frequency_equals_the_single_solve(sections):
             assert abs(got - value) <= 1e-12 * abs(value), (probe, f, got, value)
 
 
-@pytest.mark.parametrize("sections", [4, DENSE_LIMIT])
+@pytest.mark.parametrize("sections", [4, BANDED, DENSE_LIMIT])
 def test_z_probe_equals_the_single_solve_with_a_test_current(sections):
     # studies.md: Z(a, b) is V(a, b) for 1 A pushed into a and drawn from b with every
     # independent source zeroed; the single solve of exactly that circuit is the check
@@ -73,11 +81,16 @@ def test_z_probe_equals_the_single_solve_with_a_test_current(sections):
         assert abs(values["Z(n1, n3)"][0] - z2) <= 1e-12 * abs(z2)  # numpy/scipy numerics
 
 
-def test_a_singular_frequency_is_reported_and_the_rest_solved():
+@pytest.mark.parametrize("beside", [0, 30])           # stacked dense; banded
+def test_a_singular_frequency_is_reported_and_the_rest_solved(beside):
     # an LC tank with nothing else at the node: singular exactly at 1/(2π√(LC)) (textbook)
+    chain = "".join(f"Rc{k}: resistor r{k} -> r{k + 1} 1 ohm\nCc{k}: capacitor r{k + 1} -> 0 1 uF\n"
+                    for k in range(beside))
     circuit = read_circuit("frequency 50 Hz\nIs: current 0 -> a 1 A\n"
-                           "L1: inductor a -> 0 1 H\nC1: capacitor a -> 0 1 F\n")
+                           "L1: inductor a -> 0 1 H\nC1: capacitor a -> 0 1 F\n" +
+                           (f"Vs: voltage r0 -> 0 1 V\n{chain}" if beside else ""))
     engine = SweepEngine(circuit, parse_probes(["V(a)"], circuit))
+    assert (engine._band is not None) == bool(beside)
     f0 = 1 / (2 * np.pi)
     response = engine.response([f0 / 2, f0, 2 * f0])
     assert response.singular == [1]

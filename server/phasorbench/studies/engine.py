@@ -4,10 +4,10 @@ The solver's one assembly (``solver.assemble``) runs twice, at 1 Hz and 2 Hz, to
 the pattern: every unsummed stamp of the MNA matrix is a constant, proportional to ω
 (jωC, jωL, jωM) or inversely proportional to it (1/jωL, 1/jωC), and the right-hand
 side does not depend on ω at all. Per frequency only the values are restamped, summed
-per entry in extended precision and rounded once, exactly as the single solve rounds
-them; small systems are then solved as one stacked dense solve per chunk, large ones
-with SuperLU per frequency over the same pattern. Probes are read from the unknowns as
-arrays, a whole chunk at a time.
+per entry as the single solve rounds them (linear.py); small systems are then solved as
+one stacked dense solve per chunk (or, with a narrow band, banded LU point by point),
+large ones with SuperLU per frequency over the same pattern and the first point's
+column ordering. Probes are read from the unknowns as arrays, a whole chunk at a time.
 
 ``Z`` probes use the same matrix with a unit test current as the right-hand side (the
 independent sources only ever enter the right-hand side, so that is the circuit with
@@ -21,11 +21,11 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 import scipy.sparse as sp
-from scipy.sparse.linalg import splu
 
 from ..accuracy import CLD, EPS, LD, PI
 from ..model import GROUND, PASSIVE_KINDS, Circuit
 from ..solver import assemble
+from .linear import Band, Component, KeptOrder, rounded
 from .probes import Impedance, Probe, Voltage
 
 __all__ = ["DENSE_LIMIT", "CHUNK_BYTES", "Response", "SweepEngine", "sweep_response",
@@ -61,7 +61,15 @@ def zero_own_frequency_sources(circuit: Circuit) -> tuple[Circuit, list[str]]:
 
 class SweepEngine:
     """The pattern of ``circuit``'s MNA system, built once; ``response(frequencies)``
-    restamps values and solves (own-``freq`` sources zeroed by the caller)."""
+    restamps values and solves (own-``freq`` sources zeroed by the caller).
+
+    Every matrix entry is kept as three sums of its stamps, taken once in extended
+    precision: the constant part, the part ∝ ω and the part ∝ 1/ω, with the sums of
+    their magnitudes for the single solve's rounding rule. Entries are held in the
+    column-major order of the CSC pattern, so one frequency's values are the data array
+    of its sparse matrix as they come; only the entries that move with ω are computed
+    per frequency. Large systems keep the column ordering of their first factorisation
+    for every later point: the factor then skips the ordering."""
 
     def __init__(self, circuit: Circuit, probes: list[Probe]):
         self.circuit, self.probes = circuit, probes
@@ -78,54 +86,98 @@ class SweepEngine:
         key = rows * size + cols
         order = np.argsort(key, kind="stable")
         key = key[order]
-        self._const = np.where(grows | falls, 0, v1)[order].astype(CLD)
-        self._grow = np.where(grows, v1 / w1, 0)[order].astype(CLD)
-        self._fall = np.where(falls, v1 * w1, 0)[order].astype(CLD)
-        self._starts = np.flatnonzero(np.r_[True, key[1:] != key[:-1]]) if len(key) \
+        const = np.where(grows | falls, 0, v1)[order].astype(CLD)
+        grow = np.where(grows, v1 / w1, 0)[order].astype(CLD)
+        fall = np.where(falls, v1 * w1, 0)[order].astype(CLD)
+        starts = np.flatnonzero(np.r_[True, key[1:] != key[:-1]]) if len(key) \
             else np.zeros(0, dtype=np.int64)
-        unique = key[self._starts]
-        self._rows, self._cols = unique // max(size, 1), unique % max(size, 1)
-        by_column = np.lexsort((self._rows, self._cols))
-        self._csc_order = by_column
-        self._csc_indices = self._rows[by_column]
-        self._csc_indptr = np.searchsorted(self._cols[by_column], np.arange(size + 1))
+        unique = key[starts]
+        rows, cols = unique // max(size, 1), unique % max(size, 1)
+        by_column = np.lexsort((rows, cols))           # the CSC pattern's order
+        self._rows, self._cols = rows[by_column], cols[by_column]
+        self._flat = self._rows * size + self._cols
+        self._csc_indices = self._rows.astype(np.int32)
+        self._csc_indptr = np.searchsorted(self._cols, np.arange(size + 1)).astype(np.int32)
+
+        def per_entry(values):
+            if not len(starts):
+                return np.zeros(0, dtype=values.dtype)
+            return np.add.reduceat(values, starts)[by_column]
+        parts = [per_entry(v) for v in (const, grow, fall)]
+        sizes = [per_entry(np.abs(v)) for v in (const, grow, fall)]
+        moving = (parts[1] != 0) | (parts[2] != 0)
+        self._moving = np.flatnonzero(moving)
+        self._parts = [x[moving] for x in parts]
+        self._plan = [Component(getattr(x[moving], name) for x in parts)
+                      for name in ("real", "imag")]
+        self._sizes = [x[moving].astype(float) for x in sizes]
+        fixed = parts[0][~moving]
+        self._fixed = np.flatnonzero(~moving)
+        self._fixed_values = rounded(fixed, sizes[0][~moving])
         self._keys, self._rhs = _right_hand_sides(low, probes)
         self._readers = {p.text: [_reader(part, low, circuit, self._keys)
                                   for part in p.parts()] for p in probes}
         self.dense = size <= DENSE_LIMIT
+        self._kept = KeptOrder(self._csc_indices, self._csc_indptr, size)
+        # row sums of entry-by-entry products: the residual A·x from the pattern
+        self._row_sum = sp.csr_matrix((np.ones(self.entries), (self._rows,
+                                       np.arange(self.entries))),
+                                      shape=(size, self.entries))
+        self._band = Band.of(self._rows, self._cols, size) if self.dense else None
 
-    def matrices(self, frequencies: np.ndarray) -> np.ndarray:
-        """The rounded entries of the matrix at each frequency, shape (F, entries)."""
+    @property
+    def entries(self) -> int:
+        return len(self._rows)
+
+    def matrices(self, frequencies) -> np.ndarray:
+        """The rounded entries of the matrix at each frequency, shape (F, entries), in
+        the CSC pattern's order."""
+        count = len(frequencies)
+        out = np.empty((count, self.entries), dtype=complex)
+        out[:, self._fixed] = self._fixed_values
+        out[:, self._moving] = self._moving_values(frequencies)
+        return out
+
+    def _moving_values(self, frequencies) -> np.ndarray:
+        """The entries that move with ω, summed as the single solve sums its stamps: a
+        real or imaginary part of two or three terms (an L and a C on one node) in
+        extended precision and rounded once, a part of one term in double precision (one
+        product or quotient, within an ulp of the extended value), an entry within the
+        rounding of its own parts zero: shape (F, moving)."""
         omega = (2 * PI * np.asarray(frequencies, dtype=LD))[:, None]
-        vals = self._const + self._grow * omega + self._fall / omega
-        if not len(self._starts):
-            return np.zeros((len(frequencies), 0), dtype=complex)
-        summed = np.add.reduceat(vals, self._starts, axis=1)
-        parts = np.add.reduceat(np.abs(vals), self._starts, axis=1)
-        rounded = summed.astype(complex)
-        # the single solve's rule (accuracy.assembled): a sum within the rounding of its
-        # own parts is zero
-        rounded[np.abs(summed) <= 4 * EPS * parts] = 0
-        return rounded
+        rounded = omega.astype(float)
+        out = np.empty((len(omega), len(self._moving)), dtype=complex)
+        for plan, part in zip(self._plan, (out.real, out.imag)):
+            plan.fill(part, omega, rounded)
+        ag, ac, ar = self._sizes
+        out[np.abs(out) <= 4 * EPS * (ag + ac * rounded + ar / rounded)] = 0
+        return out
 
     def sparse_matrix(self, entries: np.ndarray):
         """One frequency's entries as the CSC matrix the single solve factors."""
-        return sp.csc_matrix((entries[self._csc_order], self._csc_indices,
-                              self._csc_indptr), shape=(self.size, self.size))
+        return sp.csc_matrix((entries, self._csc_indices, self._csc_indptr),
+                             shape=(self.size, self.size))
 
     def response(self, frequencies) -> Response:
         frequencies = np.asarray(frequencies, dtype=float)
         count = len(frequencies)
         values = {p.text: np.full(count, np.nan + 0j) for p in self.probes}
         singular, zero_den = [], {p.text: [] for p in self.probes}
-        size, stamps = self.size, max(1, len(self._const))
-        per_point = 48 * stamps + (16 * size * size if self.dense else 0) + \
-            16 * size * self._rhs.shape[1]
-        chunk = max(1, CHUNK_BYTES // per_point)
+        size = self.size
+        stacked = self.dense and self._band is None
+        width = self._band.width if self._band is not None else 0
+        per_point = 80 * max(1, len(self._moving)) + 16 * self.entries + \
+            (32 * size * size if stacked else 16 * size * width) + \
+            48 * size * self._rhs.shape[1]
+        chunk = max(1, min(count, CHUNK_BYTES // per_point))
+        stack = None
+        if stacked and size:
+            stack = np.zeros((chunk, size, size), dtype=complex)
+            stack.reshape(chunk, size * size)[:, self._flat[self._fixed]] = self._fixed_values
         with np.errstate(all="ignore"):
             for start in range(0, count, chunk):
                 f = frequencies[start:start + chunk]
-                x, bad = self._solve(f)
+                x, bad = self._solve(f, stack)
                 singular.extend((start + bad).tolist())
                 omega = 2 * np.pi * f
                 for probe in self.probes:
@@ -143,38 +195,91 @@ class SweepEngine:
                     values[probe.text][start:start + len(f)] = out
         return Response(frequencies, values, sorted(singular), zero_den)
 
-    def _solve(self, f: np.ndarray):
+    def _solve(self, f: np.ndarray, stack):
         """Unknowns (F, size, right-hand sides) and the indices of singular points."""
         b = self._rhs
         if not self.size:
             return np.zeros((len(f), 0, b.shape[1]), dtype=complex), np.zeros(0, int)
-        entries = self.matrices(f)
         if self.dense:
-            stack = np.zeros((len(f), self.size, self.size), dtype=complex)
-            stack[:, self._rows, self._cols] = entries
+            return self._dense(f, None if stack is None else stack[:len(f)], b)
+        return self._sparse(f, b)
+
+    def _dense(self, f, stack, b):
+        """One stacked LAPACK solve (or, for a narrow band, LAPACK's banded solve point
+        by point); a chunk with a singular point again point by point. The stack is kept
+        from chunk to chunk: only the moving entries are written."""
+        count, size = len(f), self.size
+        moving = self._moving_values(f)
+        if self._band is not None:
+            x = self._band.solve(self._fixed, self._fixed_values, self._moving, moving, b)
+            if self._well_posed(moving, np.nan_to_num(x), b, finite=np.isfinite(x)):
+                return x, np.flatnonzero(~np.all(np.isfinite(x), axis=(1, 2)))
+        else:
+            stack.reshape(count, size * size)[:, self._flat[self._moving]] = moving
             try:
                 x = np.linalg.solve(stack, b)
-                if np.all(np.isfinite(x)) and _well_posed(stack, x, b):
+                if np.all(np.isfinite(x)) and self._well_posed(moving, x, b):
                     return x, np.zeros(0, int)
             except np.linalg.LinAlgError:
-                pass
-            x = np.full((len(f), self.size, b.shape[1]), np.nan + 0j)
-            for k in range(len(f)):         # a chunk with a singular point: one by one
+                x = None
+        for k in range(count):          # a chunk with a singular point: one by one
+            if self._band is None:
                 try:
-                    xk = np.linalg.solve(stack[k], b)
+                    xk = np.linalg.solve(self._stacked(moving[k]), b)
                 except np.linalg.LinAlgError:
-                    continue
-                if np.all(np.isfinite(xk)) and _well_posed(stack[k:k + 1], xk[None], b):
-                    x[k] = xk
-        else:
-            x = np.full((len(f), self.size, b.shape[1]), np.nan + 0j)
-            for k in range(len(f)):
-                try:
-                    xk = splu(self.sparse_matrix(entries[k])).solve(b)
-                except RuntimeError:
-                    continue
-                if np.all(np.isfinite(xk)):
-                    x[k] = xk
+                    xk = None
+            else:
+                xk = x[k]
+            if xk is None or not (np.all(np.isfinite(xk)) and
+                                  self._well_posed(moving[k:k + 1], xk[None], b)):
+                xk = np.full((size, b.shape[1]), np.nan + 0j)
+            if x is None:
+                x = np.full((count, size, b.shape[1]), np.nan + 0j)
+            x[k] = xk
+        bad = np.flatnonzero(~np.all(np.isfinite(x), axis=(1, 2)))
+        return x, bad
+
+    def _stacked(self, moving):
+        matrix = np.zeros(self.size * self.size, dtype=complex)
+        matrix[self._flat[self._fixed]] = self._fixed_values
+        matrix[self._flat[self._moving]] = moving
+        return matrix.reshape(self.size, self.size)
+
+    def _well_posed(self, moving, x, b, finite=None) -> bool:
+        """A stacked dense solve of an exactly singular matrix can return huge finite
+        values; the residual tells (each such chunk is redone point by point). The
+        residual A·x − b is formed from the pattern's entries (a sparse row sum), not
+        the dense stack; ``finite`` marks the points to judge (others are NaN anyway)."""
+        if finite is not None:
+            keep = np.all(finite, axis=(1, 2))
+            if not keep.all():
+                moving, x = moving[keep], x[keep]
+            if not len(x):
+                return True
+        entries = np.empty((len(x), self.entries), dtype=complex)
+        entries[:, self._fixed] = self._fixed_values
+        entries[:, self._moving] = moving
+        residual = 0.0
+        for m in range(x.shape[2]):
+            ax = self._row_sum @ (entries * np.take(x[:, :, m], self._cols, axis=1)).T
+            residual = max(residual, float(np.abs(ax - b[:, m, None]).max()))
+        scale = np.abs(entries).max() * np.abs(x).max() + np.abs(b).max()
+        return bool(residual <= 1e-8 * max(scale, 1e-300))
+
+    def _sparse(self, f, b):
+        """SuperLU per point over the one pattern, the matrix's data array restamped in
+        place; the column ordering found at the first point kept for the rest."""
+        x = np.full((len(f), self.size, b.shape[1]), np.nan + 0j)
+        data = np.zeros(self.entries, dtype=complex)      # the CSC data array
+        data[self._fixed] = self._fixed_values
+        per = max(1, CHUNK_BYTES // (80 * max(1, len(self._moving))))
+        for first in range(0, len(f), per):
+            moving = self._moving_values(f[first:first + per])
+            for j in range(len(moving)):
+                data[self._moving] = moving[j]
+                xk = self._kept.solve(data, b)
+                if xk is not None and np.all(np.isfinite(xk)):
+                    x[first + j] = xk
         bad = np.flatnonzero(~np.all(np.isfinite(x), axis=(1, 2)))
         return x, bad
 
@@ -284,11 +389,3 @@ def _right_hand_sides(system: dict, probes: list[Probe]):
                 keys.append(key)
                 columns.append(rhs)
     return keys, np.stack(columns, axis=1)
-
-
-def _well_posed(stack, x, b) -> bool:
-    """A stacked dense solve of an exactly singular matrix can return huge finite values;
-    the residual tells (each such chunk is redone point by point)."""
-    residual = np.abs(np.einsum("kij,kjm->kim", stack, x) - b).max()
-    scale = (np.abs(stack).max() * np.abs(x).max() + np.abs(b).max())
-    return bool(residual <= 1e-8 * max(scale, 1e-300))
