@@ -27,7 +27,7 @@ export function createEditor({textarea, gutter, backdrop}) {
   const overLines = el("div", {class: "lines"});
   overlay.append(overLines);
   textarea.parentElement.append(overlay);
-  const probe = el("span", {class: "measure", "aria-hidden": "true"}, "0".repeat(40));
+  const probe = el("span", {class: "measure", "aria-hidden": "true"}, "0".repeat(10));
   textarea.parentElement.append(probe);
   // Line numbers are one text node; marks are a few absolutely placed rows over it
   // and over the backdrop, so typing in a 5000-line circuit stays quick.
@@ -139,7 +139,7 @@ export function createEditor({textarea, gutter, backdrop}) {
     const lineHeight = parseFloat(style.lineHeight) || 20;
     const padTop = parseFloat(style.paddingTop) || 0;
     const padLeft = parseFloat(style.paddingLeft) || 0;
-    const charWidth = probe.getBoundingClientRect().width / 40 || 8;
+    const charWidth = probe.getBoundingClientRect().width / 10 || 8;
     const view = textarea.clientWidth;
     const x = textarea.scrollLeft;
     const first = Math.max(1, Math.floor((textarea.scrollTop - padTop) / lineHeight) + 1);

@@ -136,8 +136,8 @@ def test_nothing_runs_off_the_side_and_solve_stays_in_reach(new_page, live_serve
     if width >= 1024:
         assert clipped["tables"] == []
     else:
-        # At 683 px the nine columns of the branch table scroll inside their panel;
-        # every other table still fits.
+        # At 683 px the ten columns of the branch table scroll sideways inside their
+        # panel (a value is never broken from its unit); every other table fits.
         assert clipped["tables"] in ([], ["branch-table"])
     pf = page.locator("#group-table tbody tr").first.locator("td").nth(5)
     assert pf.inner_text().strip().endswith("lagging")
