@@ -78,8 +78,7 @@ export function createHarmonics({getSolved, whyNotSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
-        : "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
       return;
     }
     const asked = ask();

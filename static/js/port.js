@@ -37,8 +37,7 @@ export function createPort({getSolved, whyNotSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
-        : "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
       return;
     }
     const {ok, data} = await postPort(text, a, b);

@@ -112,8 +112,7 @@ export function createSweep({getSolved, whyNotSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      fill(out, el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
-        : "The circuit does not solve: fix it first (see the problems under the editor)."));
+      fill(out, el("p", {class: "placeholder"}, whyNotSolved()));
       return;
     }
     const scale = savedTool("sweep").scale || "auto";

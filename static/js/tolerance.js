@@ -82,8 +82,7 @@ export function createTolerance({getSolved, whyNotSolved}) {
     const text = await getSolved();
     if (mine !== seq) return;
     if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved ? whyNotSolved()
-        : "The circuit does not solve: fix it first (see the problems under the editor)."));
+      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
       return;
     }
     busy(true);

@@ -335,3 +335,24 @@ def test_standard_bank_sizes_beside_the_exact_answer(new_page, tools_server, art
         page.click('#pfc-out table.standard-sizes tr[data-which="above"] button')
     page.wait_for_selector('#branch-table tr[data-element="Cpf1"]', timeout=TIMEOUT_MS)
     assert "0.9923 lagging" in page.inner_text('#source-table tr[data-element="V1"]')
+
+
+@pytest.mark.parametrize("tab, submit, out", [
+    ("port", "#port-form button[type=submit]", "#port-out"),
+    ("harmonics", "#hs-form button[type=submit]", "#hs-out"),
+])
+def test_a_tool_on_a_circuit_that_does_not_solve_says_so(tab, submit, out, new_page,
+                                                         tools_server):
+    # common practice, no source: a broken circuit is named as the reason, and the text
+    # as typed stays in the editor
+    page = new_page()
+    open_page(page, tools_server)
+    broken = C14 + "R9: resistor x -> \n"
+    page.fill("#editor-text", broken)
+    page.click(f"#tab-{tab}")
+    page.click(submit)
+    page.wait_for_function(
+        f"() => document.querySelector('{out}').textContent.includes('does not solve')",
+        timeout=TIMEOUT_MS)
+    assert "fix it first" in page.inner_text(out)
+    assert page.input_value("#editor-text") == broken
