@@ -14,6 +14,7 @@ import sys
 from ..errors import CircuitError, Diagnostic
 from .common import EXIT_INPUT, EXIT_OK, load_source, print_study_diagnostics, print_warnings
 from .output import frequency_argument, voltage_argument, write_output
+from .tools import add_correction_options
 
 
 __all__ = ["add_sheet_command", "command_sheet"]
@@ -39,23 +40,7 @@ def add_sheet_command(commands) -> None:
                        help="add a power-factor correction: the shunt capacitor that "
                             "brings SOURCE to PF (lagging unless --leading), across the "
                             "source unless placed with --correct-at or --correct-across")
-    place = sheet.add_mutually_exclusive_group()
-    place.add_argument("--correct-at", metavar="NODE|A,B,C",
-                       help="the correction at a node (capacitor to ground) or at three "
-                            "line nodes (a bank), as phasorbench correct --at")
-    place.add_argument("--correct-across", nargs=2, metavar=("A", "B"),
-                       help="the correction capacitor across two nodes")
-    sheet.add_argument("--bank", choices=("wye", "delta"),
-                       help="connection of a three-phase correction bank (default wye)")
-    sheet.add_argument("--neutral", metavar="NODE",
-                       help="star node of a wye correction bank")
-    sheet.add_argument("--leading", action="store_true",
-                       help="the correction aims at a leading target")
-    sheet.add_argument("--rated-voltage", metavar="V",
-                       help="rated rms voltage of each capacitor unit (IEEE Std 18 duty)")
-    sheet.add_argument("--ratings", metavar="KVAR,...",
-                       help="standard bank ratings in kvar for the correction, as "
-                            "phasorbench correct --ratings")
+    add_correction_options(sheet, place="correct-")
     sheet.add_argument("--port", nargs=2, metavar=("A", "B"),
                        help="add the Thevenin and Norton equivalents seen from nodes A and B")
     sheet.add_argument("--tolerance", action="append", metavar="P", dest="tol_probes",

@@ -28,6 +28,32 @@ def _complex_power(supply: dict) -> str:
     return f"{eng(supply['p_w'], 'W')} {'−' if q < 0 else '+'} {eng(abs(q), 'var')}"
 
 
+def add_correction_options(parser, place: str = "") -> None:
+    """Where a correction goes and how it is built: ``--at``/``--across`` (named
+    ``--{place}at``/``--{place}across`` when ``place`` is given, as the sheet's
+    ``--correct-at``), ``--bank``, ``--neutral``, ``--leading``, ``--rated-voltage``,
+    ``--ratings``. One definition for ``correct`` and ``sheet``."""
+    where = parser.add_mutually_exclusive_group()
+    where.add_argument(f"--{place}at", dest=f"{place.replace('-', '_')}at", metavar="NODE|A,B,C",
+                       help="a node (capacitor to ground) or three line nodes (a bank); "
+                       "default: across the source's terminals")
+    where.add_argument(f"--{place}across", dest=f"{place.replace('-', '_')}across", nargs=2,
+                       metavar=("A", "B"), help="a capacitor across two nodes")
+    parser.add_argument("--bank", choices=("wye", "delta"),
+                        help="connection of a three-phase bank (default wye)")
+    parser.add_argument("--neutral", metavar="NODE",
+                        help="star node of a wye bank (default: the source's star when "
+                        "placed at the source, else the bank's own star point)")
+    parser.add_argument("--leading", action="store_true", help="aim at a leading target")
+    parser.add_argument("--rated-voltage", metavar="V",
+                        help="rated rms voltage of each capacitor unit: check its duty "
+                        "against the continuous limits of IEEE Std 18-2002")
+    parser.add_argument("--ratings", metavar="KVAR,...",
+                        help="standard bank ratings in kvar at the rated voltage, e.g. "
+                        "'5,7.5,10,12.5': the next one down and up from the exact answer, "
+                        "each re-solved (default: common ratings from 0.25 to 5000 kvar)")
+
+
 def add_tool_commands(commands) -> None:
     """Register ``correct`` and ``port`` on the command line's sub-command set."""
     correct = commands.add_parser(
@@ -40,25 +66,7 @@ def add_tool_commands(commands) -> None:
                          help="the voltage or current source, or voltage3 block")
     correct.add_argument("--target", required=True, metavar="PF",
                          help="target power factor in (0, 1], lagging unless --leading")
-    place = correct.add_mutually_exclusive_group()
-    place.add_argument("--at", metavar="NODE|A,B,C",
-                       help="a node (capacitor to ground) or three line nodes (a bank); "
-                       "default: across the source's terminals")
-    place.add_argument("--across", nargs=2, metavar=("A", "B"),
-                       help="a capacitor across two nodes")
-    correct.add_argument("--bank", choices=("wye", "delta"),
-                         help="connection of a three-phase bank (default wye)")
-    correct.add_argument("--neutral", metavar="NODE",
-                         help="star node of a wye bank (default: the source's star when "
-                         "placed at the source, else the bank's own star point)")
-    correct.add_argument("--leading", action="store_true", help="aim at a leading target")
-    correct.add_argument("--rated-voltage", metavar="V",
-                         help="rated rms voltage of each capacitor unit: check its duty "
-                         "against the continuous limits of IEEE Std 18-2002")
-    correct.add_argument("--ratings", metavar="KVAR,...",
-                         help="standard bank ratings in kvar at the rated voltage, e.g. "
-                         "'5,7.5,10,12.5': the next one down and up from the exact answer, "
-                         "each re-solved (default: common ratings from 0.25 to 5000 kvar)")
+    add_correction_options(correct)
     correct.add_argument("--json", action="store_true", help="print the result as JSON")
     correct.set_defaults(run=command_correct)
 
