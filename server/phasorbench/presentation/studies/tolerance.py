@@ -18,7 +18,7 @@ def quantity_unit(result: dict, name: str) -> str:
         if q["name"] == name:
             return UNIT_OF_QUANTITY.get(q.get("kind"), "")
     return ""
-PERCENTILE_LABELS = {"0.135": "−3σ (0.135 %)", "2.275": "−2σ (2.275 %)", "50": "median",
+PERCENTILE_LABELS = {"0.135": "−3σ (0.135 %)", "2.275": "−2σ (2.275 %)", "50": "50 % (median)",
                      "97.725": "+2σ (97.725 %)", "99.865": "+3σ (99.865 %)"}
 
 
