@@ -22,7 +22,7 @@ function placeOptions(source) {
 
 const nodeLabel = (n) => (n === "0" ? "0 (ground)" : n);
 
-export function createCorrection({getSolved, onAppend, whyNotSolved}) {
+export function createCorrection({solvedFor, onAppend}) {
   const form = $("pfc-form");
   const out = $("pfc-out");
   const boxes = [$("pfc-node1"), $("pfc-node2"), $("pfc-node3")];
@@ -158,13 +158,8 @@ export function createCorrection({getSolved, onAppend, whyNotSolved}) {
     event.preventDefault();
     remember();
     const mine = ++seq;
-    out.replaceChildren(el("p", {class: "placeholder"}, "Sizing the capacitor…"));
-    const text = await getSolved();
-    if (mine !== seq) return;
-    if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
-      return;
-    }
+    const text = await solvedFor(out, "Sizing the capacitor…", () => mine === seq);
+    if (text === null) return;
     const asked = request();
     const {ok, data} = await postCorrect(text, asked);
     if (mine !== seq) return;

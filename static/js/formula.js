@@ -70,7 +70,7 @@ function render(d) {
   return parts;
 }
 
-export function createFormula({getSolved, whyNotSolved}) {
+export function createFormula({solvedFor}) {
   const form = $("formula-form");
   const out = $("formula-out");
   let seq = 0;
@@ -88,14 +88,9 @@ export function createFormula({getSolved, whyNotSolved}) {
                          solve_for: $("formula-solve-for").value});
     const mine = ++seq;
     $("formula-run").disabled = true;
-    out.replaceChildren(el("p", {class: "placeholder"}, "Deriving the formula…"));
     try {
-      const text = await getSolved();
-      if (mine !== seq) return;
-      if (text === null) {
-        out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
-        return;
-      }
+      const text = await solvedFor(out, "Deriving the formula…", () => mine === seq);
+      if (text === null) return;
       const {ok, data} = await postFormula(text, ask);
       if (mine !== seq) return;
       answered = ok ? {text, asked: ask} : null;

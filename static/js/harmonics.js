@@ -28,7 +28,7 @@ function pictures(items, cls) {
   }));
 }
 
-export function createHarmonics({getSolved, whyNotSolved}) {
+export function createHarmonics({solvedFor}) {
   const form = $("hs-form");
   const out = $("hs-out");
   let seq = 0;
@@ -74,13 +74,8 @@ export function createHarmonics({getSolved, whyNotSolved}) {
     if (event) event.preventDefault();
     remember();
     const mine = ++seq;
-    out.replaceChildren(el("p", {class: "placeholder"}, "Solving every order…"));
-    const text = await getSolved();
-    if (mine !== seq) return;
-    if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
-      return;
-    }
+    const text = await solvedFor(out, "Solving every order…", () => mine === seq);
+    if (text === null) return;
     const asked = ask();
     const {ok, data} = await postHarmonics(text, asked);
     if (mine !== seq) return;

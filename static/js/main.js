@@ -128,6 +128,19 @@ function showServerSilent(data, status) {
                   : `The server is not answering: ${problemText(data)}.`, "error");
 }
 
+/**
+ * The circuit's text as last solved for a tool, saying `working` in `out` meanwhile;
+ * null (with the reason in `out`) when it does not solve or the server did not answer,
+ * and null too when `isCurrent()` says a later request of the tool took over.
+ */
+async function solvedFor(out, working, isCurrent) {
+  placeholder(out, working);
+  const text = await solvedText();
+  if (!isCurrent()) return null;
+  if (text === null) placeholder(out, whyNotSolved());
+  return text;
+}
+
 /** Why the tools and Export have no solved circuit: the circuit, or the server. */
 function whyNotSolved() {
   if (state.failure && state.failure.server) {
@@ -494,12 +507,12 @@ function setupTools() {
   const threePhase = createThreePhase({onSelect: (name) => select(name, {focus: false})});
   tools = {
     threePhase,
-    correction: createCorrection({getSolved: solvedText, onAppend: appendLines, whyNotSolved}),
-    port: createPort({getSolved: solvedText, whyNotSolved}),
-    tolerance: createTolerance({getSolved: solvedText, whyNotSolved}),
-    sweep: createSweep({getSolved: solvedText, whyNotSolved}),
-    formula: createFormula({getSolved: solvedText, whyNotSolved}),
-    harmonics: createHarmonics({getSolved: solvedText, whyNotSolved}),
+    correction: createCorrection({solvedFor, onAppend: appendLines}),
+    port: createPort({solvedFor}),
+    tolerance: createTolerance({solvedFor}),
+    sweep: createSweep({solvedFor}),
+    formula: createFormula({solvedFor}),
+    harmonics: createHarmonics({solvedFor}),
     tabs: createTabs($("tool-tabs"), {
       onShow(name) { if (name === "three-phase" && state.answer) threePhase.load(); },
     }),

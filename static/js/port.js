@@ -7,7 +7,7 @@ import {factList, fill, fillSelect, problemList, savedTool, saveTool} from "./to
 
 const $ = (id) => document.getElementById(id);
 
-export function createPort({getSolved, whyNotSolved}) {
+export function createPort({solvedFor}) {
   const form = $("port-form");
   const out = $("port-out");
   let seq = 0;
@@ -33,13 +33,8 @@ export function createPort({getSolved, whyNotSolved}) {
     const a = $("port-a").value, b = $("port-b").value;
     saveTool("port", {a, b});
     const mine = ++seq;
-    out.replaceChildren(el("p", {class: "placeholder"}, "Finding the equivalent…"));
-    const text = await getSolved();
-    if (mine !== seq) return;
-    if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
-      return;
-    }
+    const text = await solvedFor(out, "Finding the equivalent…", () => mine === seq);
+    if (text === null) return;
     const {ok, data} = await postPort(text, a, b);
     if (mine !== seq) return;
     answered = ok ? {text, asked: {a, b}} : null;

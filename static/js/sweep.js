@@ -13,7 +13,7 @@ const SVG_NS = "http://www.w3.org/2000/svg";
 // Probes offered as checkboxes at once; the filter box narrows a longer list.
 const LISTED = 60;
 
-export function createSweep({getSolved, whyNotSolved}) {
+export function createSweep({solvedFor}) {
   const form = $("sweep-form");
   const out = $("sweep-out");
   const view = $("sweep-view");
@@ -108,13 +108,8 @@ export function createSweep({getSolved, whyNotSolved}) {
       fill(out, el("p", {class: "placeholder"}, "Pick at least one probe to sweep."));
       return;
     }
-    fill(out, el("p", {class: "placeholder"}, "Sweeping…"));
-    const text = await getSolved();
-    if (mine !== seq) return;
-    if (text === null) {
-      fill(out, el("p", {class: "placeholder"}, whyNotSolved()));
-      return;
-    }
+    const text = await solvedFor(out, "Sweeping…", () => mine === seq);
+    if (text === null) return;
     const scale = savedTool("sweep").scale || "auto";
     const {ok, data} = await postSweep(text, {...ask, arrays: false,
                                               draw: {...pictureSize(), magnitude: scale}});

@@ -19,7 +19,7 @@ function figure(svgText, className) {
   return box;
 }
 
-export function createTolerance({getSolved, whyNotSolved}) {
+export function createTolerance({solvedFor}) {
   const form = $("tol-form");
   const out = $("tol-out");
   const bar = $("tol-progress");
@@ -78,13 +78,8 @@ export function createTolerance({getSolved, whyNotSolved}) {
     saveTool("tolerance", {probes: $("tol-probes").value, limits: $("tol-limits").value,
                            runs: ask.runs, seed: ask.seed, worst_case: ask.worst_case});
     const mine = ++seq;
-    out.replaceChildren(el("p", {class: "placeholder"}, "Running the tolerance study…"));
-    const text = await getSolved();
-    if (mine !== seq) return;
-    if (text === null) {
-      out.replaceChildren(el("p", {class: "placeholder"}, whyNotSolved()));
-      return;
-    }
+    const text = await solvedFor(out, "Running the tolerance study…", () => mine === seq);
+    if (text === null) return;
     busy(true);
     try {
       const started = await startToleranceJob(text, ask);
