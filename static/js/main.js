@@ -624,6 +624,10 @@ async function init() {
     editor.setText(sample.netlist);
     save({netlist: sample.netlist, sample: sample.name});
   }
+  // the menu names the sample in the editor, while its text is the sample's own
+  const current = loadSaved();
+  const shown = samples.find((s) => s.name === current.sample && s.netlist === editor.getText());
+  if (shown) $("samples").value = shown.name;
   if (editor.getText().trim()) {
     await solve();                      // its answer holds the diagnostics too
   }

@@ -215,6 +215,21 @@ def test_samples_menu_loads_a_sample(new_page, live_server):
                            timeout=TIMEOUT_MS)
 
 
+def test_the_menu_names_the_sample_in_the_editor_until_it_is_edited(new_page, live_server):
+    # common practice, no source: a menu shows what is loaded — the server's start-up
+    # sample on a fresh page and after a reload, nothing once the text is edited
+    page = new_page()
+    open_page(page, live_server)
+    assert page.input_value("#editor-text") == BENCH_CIRCUIT
+    assert page.input_value("#samples") == "rc-bench"
+    page.reload()
+    page.wait_for_selector("#branch-table tbody tr[data-element]", timeout=TIMEOUT_MS)
+    assert page.input_value("#samples") == "rc-bench"
+    type_circuit(page, BENCH_CIRCUIT + "# edited\n")
+    page.wait_for_function("() => document.getElementById('samples').value === ''",
+                           timeout=TIMEOUT_MS)
+
+
 def test_reload_keeps_the_circuit_and_the_view(playwright_driver, live_server, tmp_path):
     """A persistent profile: the circuit and the selection survive a reload and a restart."""
     profile = tmp_path / "profile"
