@@ -168,21 +168,22 @@ class Batch:
         """The probes for every row of ``scales`` (rows: runs; columns: quantities)."""
         v = value_matrix(self.q, scales)
         values = {name: v[:, j] for name, j in self.read.items()}
-        dg = self._g(v)
-        dg -= self.g0
         dv = v - self.v0 if self.to_rhs.nnz else None      # sources move the right side
         runs = len(scales)
         step = max(1, CHUNK_BYTES // max(1, 16 * self.size * self.size))
-        if self.dense and runs <= step:
-            return self._read(self._dense(dg, dv), values)
-        x = np.full((runs, self.size, self.B0.shape[1]), np.nan + 0j)
         if self.dense:
+            if runs <= step:
+                return self._read(self._dense(v, dv), values)
+            x = np.full((runs, self.size, self.B0.shape[1]), np.nan + 0j)
             for start in range(0, runs, step):
                 block = slice(start, min(start + step, runs))
-                x[block] = self._dense(dg[block], None if dv is None else dv[block])
-        else:
-            for k in range(runs):
-                x[k] = self._sparse(dg[k], None if dv is None else dv[k])
+                x[block] = self._dense(v[block], None if dv is None else dv[block])
+            return self._read(x, values)
+        dg = self._g(v)
+        dg -= self.g0
+        x = np.full((runs, self.size, self.B0.shape[1]), np.nan + 0j)
+        for k in range(runs):
+            x[k] = self._sparse(dg[k], None if dv is None else dv[k])
         return self._read(x, values)
 
     def _rhs(self, dv: np.ndarray | None, runs: int = 1) -> np.ndarray:
@@ -192,53 +193,76 @@ class Batch:
             b[:, :, 0] += (self.to_rhs.T @ dv.T).T
         return b
 
-    def _dense(self, dg: np.ndarray, dv: np.ndarray | None) -> np.ndarray:
-        n, runs = self.size, len(dg)
+    def _g_by_entity(self, v: np.ndarray) -> np.ndarray:
+        """g(v) as entity × run (rows: entities), the layout the moving entries are
+        made from: each law's rows gathered whole."""
+        vt = np.ascontiguousarray(v.T)
+        w = self.omega
+        with np.errstate(all="ignore"):
+            for rows, fn in zip(self._law_rows, (lambda x: 1 / x, lambda x: (1j * w) * x,
+                                                 lambda x: 1 / ((1j * w) * x), None)):
+                if fn is not None and len(rows):
+                    vt[rows] = fn(vt[rows])
+        return vt
+
+    def _dense(self, v: np.ndarray, dv: np.ndarray | None) -> np.ndarray:
+        """One block of runs by a stacked dense solve. The kept stack holds each run's
+        matrix transposed (column by column, the order LAPACK reads): only the moving
+        entries are rewritten, and the solve copies no rows into columns."""
+        n, runs = self.size, len(v)
         if self._buffers is None or len(self._buffers[0]) < runs:
             self._dense_setup(runs)
-        stack, b = (buffer[:runs] for buffer in self._buffers)
+        columns, b = (buffer[:runs] for buffer in self._buffers)
+        stack = columns.transpose(0, 2, 1)                   # each run's A, a view
         # the moving entries position by position (rows), run by run (columns)
-        delta = np.zeros((0, runs), complex)
-        moving = delta
+        moving = np.zeros((0, runs), complex)
         if len(self.flat):          # linalg.solve leaves its input alone: reset what moves
-            delta = self._flat_of @ dg.T
-            moving = self._a0_flat[:, None] + delta
-            stack.reshape(runs, n * n)[:, self.flat] = moving.T
+            moving = self._flat_of @ self._g_by_entity(v)
+            moving += self._flat_c0[:, None]
+            columns.reshape(runs, n * n)[:, self._flat_t] = moving.T
         if dv is not None and len(self._rhs_rows):
             b[:, self._rhs_rows, 0] = self.B0[self._rhs_rows, 0] + \
                 (self.to_rhs.T @ dv.T).T[:, self._rhs_rows]
         with np.errstate(all="ignore"):
             try:
                 x = np.linalg.solve(stack, b)
-                if np.all(np.isfinite(x)) and self._well_posed(delta, moving, x, b):
+                if np.all(np.isfinite(x)) and self._well_posed(moving, x, b):
                     return x
             except np.linalg.LinAlgError:
                 pass
         return np.stack([self._solve_one(stack[k], b[k]) for k in range(runs)])
 
     def _dense_setup(self, runs: int) -> None:
-        """The kept stack and right-hand sides (nominal everywhere), and the maps of the
-        moving entries: from the entities' changes, and to the rows they sit in."""
+        """The kept stack (each run's nominal matrix, transposed) and right-hand sides,
+        and the maps of the moving entries: from the entities' values, and to the rows
+        they sit in."""
         n = self.size
         a0 = self.A0.toarray()
-        self._a0_flat = a0.reshape(-1)[self.flat]
         self._rhs_rows = np.unique(self.rhs_rows)
-        self._buffers = (np.broadcast_to(a0, (runs, n, n)).copy(),
+        self._buffers = (np.broadcast_to(a0.T, (runs, n, n)).copy(),
                          np.broadcast_to(self.B0, (runs,) + self.B0.shape).copy())
         self._flat_of = self.to_flat.T.tocsr()             # moving entry × entity
+        # a moving entry = its nominal value + Σ sign·(g − g0): the constant part once
+        self._flat_c0 = a0.reshape(-1)[self.flat] - self._flat_of @ self.g0
         rows, self._flat_cols = np.divmod(self.flat, n)
+        self._flat_t = self._flat_cols * n + rows            # where it sits transposed
+        self._law_rows = [np.flatnonzero(self.laws == code) for code in range(4)]
         self._to_rows = sp.csr_matrix((np.ones(len(self.flat)),
                                        (rows, np.arange(len(self.flat)))),
                                       shape=(n, len(self.flat)))
-        self._a0_rows = self.A0.tocsr()
+        # the matrix less its moving entries: A = rest + the moving entries
+        keep = np.ones(n * n, bool)
+        keep[self.flat] = False
+        rest = np.where(keep.reshape(n, n), a0, 0)
+        self._rest_rows = sp.csr_matrix(rest)
 
-    def _well_posed(self, delta, moving, x, b) -> bool:
+    def _well_posed(self, moving, x, b) -> bool:
         """engine._well_posed's residual test, its scale from the nominal matrix and the
         moving entries rather than a pass over the whole stack (|z| ≤ |re| + |im|).
 
-        The residual is A0·x (one sparse product over all runs) plus the moving
-        entries' changes times x, less b, each unknown a row and each run a column: the
-        stack is not read again."""
+        The residual is the fixed entries times x (one sparse product over all runs)
+        plus the moving entries times x, less b, each unknown a row and each run a
+        column: the stack is not read again."""
         def bound(a):
             if not a.size:
                 return 0.0
@@ -250,9 +274,9 @@ class Batch:
         residual = 0.0
         for j in range(x.shape[2]):
             xj = np.ascontiguousarray(x[:, :, j].T)                 # unknown × run
-            r = self._a0_rows @ xj
-            if len(delta):
-                r += self._to_rows @ (delta * xj[self._flat_cols])
+            r = self._rest_rows @ xj
+            if len(moving):
+                r += self._to_rows @ (moving * xj[self._flat_cols])
             r -= b[:, :, j].T
             residual = max(residual, bound(r))
         # b is the nominal right side in every run unless sources move
