@@ -53,3 +53,18 @@ def test_text_orjson_refuses_is_still_written():
     # reference: Python's json module writes both (as \\ud800 and the digits)
     text = dumps({"name": "R\ud800", "big": 2 ** 70})
     assert json.loads(text) == {"name": "R\ud800", "big": 2 ** 70}
+
+
+def test_dumps_in_pieces_writes_the_same_bytes_as_one_call():
+    # common practice, no source: splitting the text at entry boundaries must not change
+    # a byte (RFC 8259 compact form: entries joined by ',', no white space)
+    from phasorbench.jsonout import PIECE, dumps, dumps_in_pieces
+    data = {"title": "x", "nan": float("nan"), 3: {5: 1},
+            "elements": {f"e{i}": {"v": {"re": i * 1.1, "im": -0.3}, "i": [i, 2.5]}
+                         for i in range(3 * PIECE + 7)},
+            "long": list(range(2 * PIECE + 1)), "rows": [list(range(PIECE + 1))] * 3,
+            "short": {"a": [list(range(PIECE + 2))], "b": []}, "empty": {}}
+    assert dumps_in_pieces(data) == dumps(data)
+    # text orjson refuses (a lone surrogate) goes through the one fallback, whole
+    odd = {"n": "\ud800", "long": list(range(2 * PIECE))}
+    assert dumps_in_pieces(odd) == dumps(odd)

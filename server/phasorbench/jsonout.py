@@ -13,10 +13,11 @@ from __future__ import annotations
 import json
 import math
 from collections.abc import Mapping
+from itertools import islice
 
 import orjson
 
-__all__ = ["dumps", "plain"]
+__all__ = ["dumps", "dumps_in_pieces", "plain"]
 
 _OPTIONS = orjson.OPT_SERIALIZE_NUMPY | orjson.OPT_NON_STR_KEYS
 
@@ -69,3 +70,84 @@ def dumps(data) -> bytes:
         # escapes what is not valid UTF-8 rather than failing on it
         return json.dumps(plain(data), ensure_ascii=True, allow_nan=False,
                           separators=(",", ":")).encode("ascii")
+
+
+#: Containers with more entries than this are written a piece at a time by
+#: ``dumps_in_pieces``; each piece is one orjson call of a few milliseconds at most.
+PIECE = 512
+
+
+def dumps_in_pieces(data) -> bytes:
+    """The bytes of ``dumps(data)``, written by many short orjson calls, not one long one.
+
+    orjson holds the GIL for the whole of a call: a 150 MB answer written in one call
+    stops every other thread, the web server's event loop too, for its whole length,
+    even when it runs in a worker thread. Between pieces the interpreter can hand the
+    GIL over (its switch interval), so the loop keeps answering small requests. Plain
+    dicts and lists longer than ``PIECE`` are split; anything else is written whole.
+    When orjson refuses some text the whole answer goes through ``dumps``' fallback, so
+    the bytes are always those of ``dumps``.
+
+    >>> big = {"n": list(range(2000)), "m": {str(i): [i, 0.5] for i in range(900)}}
+    >>> dumps_in_pieces(big) == dumps(big)
+    True
+    """
+    pieces: list[bytes] = []
+    try:
+        _pieces(data, pieces)
+    except (orjson.JSONEncodeError, TypeError):
+        return dumps(data)
+    return b"".join(pieces)
+
+
+def _one(value) -> bytes:
+    return orjson.dumps(value, default=_default, option=_OPTIONS)
+
+
+def _pieces(value, out: list[bytes]) -> None:
+    """Append the JSON of ``value`` to ``out`` in pieces (see ``dumps_in_pieces``).
+
+    A long dict or list (more than ``PIECE`` entries) is written ``PIECE`` entries per
+    call, whatever their size; a short one that holds long containers has each of its
+    entries written on its own, the long ones again in pieces.
+    """
+    kind = type(value)
+    if not _big(value):
+        out.append(_one(value))
+    elif len(value) > PIECE:
+        entries = iter(value.items() if kind is dict else value)
+        parts = []
+        while chunk := kind(islice(entries, PIECE)):
+            parts.append(_one(chunk)[1:-1])
+        out.append((b"{" if kind is dict else b"[") + b",".join(parts) +
+                   (b"}" if kind is dict else b"]"))
+    else:
+        parts = []
+        for entry in (value.items() if kind is dict else value):
+            inner: list[bytes] = []
+            if kind is dict:
+                key, entry = entry
+                inner.append(_one({key: 0})[1:-2])      # the key as orjson writes it, ':'
+            _pieces(entry, inner)
+            parts.append(b"".join(inner))
+        out.append((b"{" if kind is dict else b"[") + b",".join(parts) +
+                   (b"}" if kind is dict else b"]"))
+
+
+def _long(value) -> bool:
+    """A plain dict or list of more than ``PIECE`` entries."""
+    return type(value) in (dict, list) and len(value) > PIECE
+
+
+def _big(value) -> bool:
+    """A plain dict or list worth splitting: more than ``PIECE`` entries, counting
+    those of the containers it holds directly."""
+    if type(value) is dict:
+        values = value.values()
+    elif type(value) is list:
+        values = value
+    else:
+        return False
+    if len(value) > PIECE:
+        return True
+    return sum(len(v) for v in values if type(v) in (dict, list)) > PIECE

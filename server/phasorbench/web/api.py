@@ -19,7 +19,7 @@ from pydantic_core import PydanticCustomError
 
 from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
 from . import answers, jobs
-from .jsonsafe import StrictJSONResponse
+from .jsonsafe import EncodedJSONResponse, StrictJSONResponse, encoded, utf8
 from .samples import list_samples
 from ..presentation.rows import MAX_WINDOW, ROW_WINDOW
 from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX
@@ -284,13 +284,32 @@ async def run_guarded(request: Request, job, *args, heavy: bool = False,
     return answer, None
 
 
-async def run_job(request: Request, job, *args, heavy: bool = False,
-                  respond=StrictJSONResponse):
-    """Run ``job(*args, settings)`` in its lane and answer ``respond(answer)`` (strict
-    JSON unless the route says otherwise)."""
-    answer, failed = await run_guarded(request, job, *args, request.app.state.settings,
-                                       heavy=heavy)
-    return failed if failed is not None else respond(answer)
+def _then(job, encode):
+    """``job`` followed by ``encode`` of its answer, both in the job's worker thread."""
+    def run(*args):
+        return encode(job(*args))
+    return run
+
+
+async def run_job(request: Request, job, *args, heavy: bool = False, respond=None):
+    """Run ``job(*args, settings)`` in its lane and answer with its JSON, or with
+    ``respond(bytes)`` when the route gives one (``job`` then returns text, sent as UTF-8).
+
+    The answer is encoded to bytes in the job's worker thread (``jsonsafe.encoded``,
+    ``jsonsafe.utf8``), never on the event loop, so a small request is not held up
+    while a big answer is written.
+    """
+    # Blocking work stays off the event loop: the Python documentation's asyncio guide
+    # ("Developing with asyncio", "Running Blocking Code"); starlette's run_in_threadpool
+    # does the same for plain routes.
+    settings = request.app.state.settings
+    if respond is None:
+        body, failed = await run_guarded(request, _then(job, encoded), *args, settings,
+                                         heavy=heavy)
+        return failed if failed is not None else EncodedJSONResponse(body)
+    body, failed = await run_guarded(request, _then(job, utf8), *args, settings,
+                                     heavy=heavy)
+    return failed if failed is not None else respond(body)
 
 
 async def check(body: CircuitBody, request: Request):
@@ -375,7 +394,7 @@ async def table(body: TableBody, request: Request):
     """One table of the solved circuit for a spreadsheet: units in the headings, numbers
     as numbers (never more digits than the solve trusts), a source's current and power
     the delivered ones; ``text/csv`` as an attachment, or ``text/tab-separated-values``."""
-    def respond(text: str) -> Response:
+    def respond(text: bytes) -> Response:
         if body.format == "tsv":
             return Response(text, media_type="text/tab-separated-values; charset=utf-8",
                             headers={"X-Content-Type-Options": "nosniff",

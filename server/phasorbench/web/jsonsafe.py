@@ -9,9 +9,9 @@ from __future__ import annotations
 import math
 import re
 
-from fastapi.responses import JSONResponse
+from fastapi.responses import JSONResponse, Response
 
-from ..jsonout import dumps
+from ..jsonout import dumps, dumps_in_pieces
 
 
 def jsonable(value):
@@ -49,6 +49,26 @@ class StrictJSONResponse(JSONResponse):
 
     def render(self, content) -> bytes:
         return dumps(content)
+
+
+def encoded(answer) -> bytes:
+    """``answer`` as the bytes ``StrictJSONResponse`` would send (``jsonout.dumps``).
+
+    The API's jobs call it in their worker thread (``api.run_job``), so that a big
+    answer's encode (a 250 MB harmonic study) never runs on the event loop; written in
+    pieces (``jsonout.dumps_in_pieces``) so that the loop gets the GIL between them.
+    """
+    return dumps_in_pieces(answer)
+
+
+class EncodedJSONResponse(Response):
+    """A JSON response whose bytes were written already (``encoded``, off the event
+    loop): the same body and headers as ``StrictJSONResponse`` of the same answer."""
+
+    media_type = JSONResponse.media_type
+
+    def __init__(self, body: bytes, status_code: int = 200, headers=None):
+        super().__init__(body, status_code=status_code, headers=headers)
 
 
 def utf8(text: str) -> bytes:

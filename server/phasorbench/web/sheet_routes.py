@@ -119,6 +119,13 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     return render_context(context), context["filename"]
 
 
+def _encoded_sheet(body, settings) -> tuple[bytes, str]:
+    """``sheet_answer`` with the HTML as UTF-8 bytes, encoded in the job's worker thread
+    (as ``api.run_job`` does for JSON), not on the event loop."""
+    html, filename = sheet_answer(body, settings)
+    return utf8(html), filename
+
+
 @router.post("/api/sheet", summary="The solved sheet of a circuit (a self-contained HTML file)",
              response_class=Response,
              responses={**api.ERROR_RESPONSES,
@@ -132,13 +139,13 @@ async def sheet(body: SheetBody, request: Request):
     the circuit has errors (as ``/api/solve``).
     """
     # a sheet with a sweep is many solves: the large lane, as POST /api/sweep
-    answer, failed = await api.run_guarded(request, sheet_answer, body,
+    answer, failed = await api.run_guarded(request, _encoded_sheet, body,
                                            request.app.state.settings, text=body.netlist,
                                            heavy=body.sweep is not None)
     if failed is not None:
         return failed
     html, filename = answer
-    return Response(utf8(html), media_type="text/html; charset=utf-8", headers={
+    return Response(html, media_type="text/html; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="{filename}"',
         "X-Content-Type-Options": "nosniff",
         "Cache-Control": "no-store",

@@ -169,7 +169,7 @@ async def sweep_csv(body: SweepBody, request: Request):
                              respond=_csv_response)
 
 
-def _csv_response(text: str) -> Response:
+def _csv_response(text: bytes) -> Response:
     return Response(text, media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": 'attachment; filename="frequency-response.csv"',
         "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
