@@ -1,5 +1,7 @@
 // The circuit editor: a plain textarea with a line-number gutter and a backdrop
 // that marks the lines the checker complains about, with the message at the line's end.
+// The textarea holds a window of the text around the view (textwindow.js); the gutter,
+// backdrop and overlay are drawn for the whole text's lines, scrolled with its box.
 //
 // The backdrop sits under the transparent textarea with the same font and line
 // height; only marked lines carry text (to place the wavy underline), so a long
@@ -13,22 +15,33 @@
 // is on its line the note opens whole, wrapped, in a box under the line.
 
 import {el} from "./dom.js";
+import {columns, createTextWindow} from "./textwindow.js";
 
 const MARK = {error: "✖", warning: "▲"};
-// Texts up to this size replace the editor's text as an undoable edit.
-const UNDOABLE_CHARS = 100_000;
 // Line numbers drawn beyond each edge of the view: the gutter holds a window of them,
 // not one per line of a 30,000-line circuit (painting those took a third of a second
 // every time anything on the page changed).
 const NUMBER_MARGIN = 200;
 
-export function createEditor({textarea, gutter, backdrop}) {
+/** The editor; `onChange` runs after every edit of the person's (not after setText). */
+export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
+  const code = scroller.parentElement;
   const overlay = el("div", {class: "overlay", "aria-hidden": "true"});
   const overLines = el("div", {class: "lines"});
   overlay.append(overLines);
-  textarea.parentElement.append(overlay);
+  code.append(overlay);
   const probe = el("span", {class: "measure", "aria-hidden": "true"}, "0".repeat(10));
-  textarea.parentElement.append(probe);
+  code.append(probe);
+  const spacer = el("div", {class: "spacer", "aria-hidden": "true"});
+  scroller.prepend(spacer);
+  const text = createTextWindow({
+    textarea, scroller, spacer, probe,
+    onChange() {
+      render();
+      if (onChange) onChange();
+    },
+    onMove: () => syncScroll(),
+  });
   // Line numbers are one text node; marks are a few absolutely placed rows over it
   // and over the backdrop, so typing in a 5000-line circuit stays quick.
   const numbers = el("div", {class: "numbers"});
@@ -42,9 +55,7 @@ export function createEditor({textarea, gutter, backdrop}) {
   let numbersFrom = 0;
   let numbersTo = -1;
 
-  function lines() {
-    return textarea.value.split("\n");
-  }
+  const lines = () => text.lines();
 
   /** Diagnostics grouped by line; a line's errors come before its warnings. */
   function byLine() {
@@ -64,13 +75,13 @@ export function createEditor({textarea, gutter, backdrop}) {
   const severityOf = (list) => (list[0].severity === "warning" ? "warning" : "error");
   const topOf = (line) => `calc(${line - 1} * var(--line))`;
 
-  const lineHeight = () => parseFloat(getComputedStyle(textarea).lineHeight) || 20;
+  const lineHeight = () => text.metrics().lineHeight;
 
   /** The line numbers around the view (all of them when `force` or the count changed). */
   function drawNumbers(force = false) {
     const h = lineHeight();
-    const first = Math.floor(textarea.scrollTop / h);
-    const last = first + Math.ceil((textarea.clientHeight || 600) / h) + 1;
+    const first = Math.floor(scroller.scrollTop / h);
+    const last = first + Math.ceil((scroller.clientHeight || 600) / h) + 1;
     if (!force && first >= numbersFrom && Math.min(last, lineCount) <= numbersTo) return;
     const from = Math.max(0, first - NUMBER_MARGIN);
     const to = Math.min(lineCount, last + NUMBER_MARGIN);
@@ -117,38 +128,20 @@ export function createEditor({textarea, gutter, backdrop}) {
     return `${MARK[severityOf(list)]} ${first.message}${hint}${more}`;
   }
 
-  /** Width of a line's text in pixels (tabs to the next stop of four). */
-  function textWidth(text, charWidth) {
-    if (!text.includes("\t")) return text.length * charWidth;
-    let columns = 0;
-    for (const ch of text) columns = ch === "\t" ? (Math.floor(columns / 4) + 1) * 4 : columns + 1;
-    return columns * charWidth;
-  }
-
-  function caretLine() {
-    if (document.activeElement !== textarea) return 0;
-    const before = textarea.value.slice(0, textarea.selectionStart);
-    let count = 1;
-    for (let i = before.indexOf("\n"); i !== -1; i = before.indexOf("\n", i + 1)) count++;
-    return count;
-  }
+  const caretLine = () => text.caretLine();
 
   /** The cut-off marks and the notes of the lines in view (see the head of the file). */
   function renderOverlay(all, marks) {
-    const style = getComputedStyle(textarea);
-    const lineHeight = parseFloat(style.lineHeight) || 20;
-    const padTop = parseFloat(style.paddingTop) || 0;
-    const padLeft = parseFloat(style.paddingLeft) || 0;
-    const charWidth = probe.getBoundingClientRect().width / 10 || 8;
-    const view = textarea.clientWidth;
-    const x = textarea.scrollLeft;
-    const first = Math.max(1, Math.floor((textarea.scrollTop - padTop) / lineHeight) + 1);
-    const last = Math.min(all.length, first + Math.ceil(textarea.clientHeight / lineHeight) + 1);
+    const {lineHeight, padTop, padLeft, charWidth} = text.metrics();
+    const view = scroller.clientWidth;
+    const x = scroller.scrollLeft;
+    const first = Math.max(1, Math.floor((scroller.scrollTop - padTop) / lineHeight) + 1);
+    const last = Math.min(all.length, first + Math.ceil(scroller.clientHeight / lineHeight) + 1);
     const caret = marks.size ? caretLine() : 0;
     const nodes = [];
     const top = (line) => `${padTop + (line - 1) * lineHeight}px`;
     for (let line = first; line <= last; line++) {
-      const end = padLeft + textWidth(all[line - 1], charWidth) - x;
+      const end = padLeft + columns(all[line - 1]) * charWidth - x;
       const list = marks.get(line);
       if (!list) {
         if (end > view + 1) nodes.push(el("div", {class: "cut", style: `top: ${top(line)}`, dataset: {line}}, "▸"));
@@ -174,14 +167,14 @@ export function createEditor({textarea, gutter, backdrop}) {
       }
     }
     overlay.style.width = `${view}px`;
-    overlay.style.height = `${textarea.clientHeight}px`;
+    overlay.style.height = `${scroller.clientHeight}px`;
     overLines.replaceChildren(...nodes);
     // An open note near the foot of the editor opens above its line instead.
     const open = overLines.querySelector(".note.open");
     if (open) {
       const line = Number(open.dataset.line);
-      const below = padTop + line * lineHeight - textarea.scrollTop;
-      if (below + open.offsetHeight > textarea.clientHeight && below - lineHeight - open.offsetHeight >= 0) {
+      const below = padTop + line * lineHeight - scroller.scrollTop;
+      if (below + open.offsetHeight > scroller.clientHeight && below - lineHeight - open.offsetHeight >= 0) {
         open.style.top = `${padTop + (line - 1) * lineHeight - open.offsetHeight}px`;
       }
     }
@@ -219,8 +212,8 @@ export function createEditor({textarea, gutter, backdrop}) {
     }
   }
   function syncScroll() {
-    const y = textarea.scrollTop;
-    const x = textarea.scrollLeft;
+    const y = scroller.scrollTop;
+    const x = scroller.scrollLeft;
     gutterLines.style.transform = `translateY(${-y}px)`;
     backLines.style.transform = `translate(${-x}px, ${-y}px)`;
     overLines.style.transform = `translateY(${-y}px)`;
@@ -231,45 +224,24 @@ export function createEditor({textarea, gutter, backdrop}) {
 
   /** Put the caret at (line, column), both from 1, and bring the line into view. */
   function focusAt(line, column = 1) {
-    const all = lines();
-    let offset = 0;
-    for (let i = 0; i < Math.min(line - 1, all.length); i++) offset += all[i].length + 1;
-    offset += Math.max(0, (column || 1) - 1);
-    textarea.focus();
-    textarea.setSelectionRange(offset, offset);
-    const h = lineHeight();
-    const top = (line - 1) * h;
-    if (top < textarea.scrollTop || top > textarea.scrollTop + textarea.clientHeight - 2 * h) {
-      textarea.scrollTop = Math.max(0, top - textarea.clientHeight / 3);
-    }
-    syncScroll();
+    text.focusAt(line - 1, Math.max(0, (column || 1) - 1));
   }
 
-  /**
-   * Replace the whole text, keeping the browser's undo history where it can (not for a
-   * big circuit: the editing machinery behind undo takes minutes over megabytes).
-   */
-  function setText(text) {
-    textarea.focus();
-    textarea.select();
-    const done = text.length <= UNDOABLE_CHARS && document.execCommand &&
-      document.execCommand("insertText", false, text);
-    if (!done || textarea.value !== text) textarea.value = text;
-    textarea.setSelectionRange(0, 0);
-    textarea.scrollTop = 0;
+  /** Replace the whole text (undoable with Ctrl+Z), caret and view at its start. */
+  function setText(value) {
+    text.setText(value);
     render();
   }
 
-  textarea.addEventListener("scroll", syncScroll);
-  textarea.addEventListener("input", render);
+  scroller.addEventListener("scroll", syncScroll);
   document.addEventListener("selectionchange", caretMoved);
   textarea.addEventListener("focus", caretMoved);
   textarea.addEventListener("blur", caretMoved);
-  new ResizeObserver(syncScroll).observe(textarea);
+  new ResizeObserver(syncScroll).observe(scroller);
   render();
 
   return {
-    getText: () => textarea.value,
+    getText: text.getText,
     setText,
     setDiagnostics(list) {
       diagnostics = list || [];

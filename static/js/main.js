@@ -13,7 +13,7 @@ import {createPort} from "./port.js";
 import {setupFiles} from "./files.js";
 import {exportSheet} from "./sheet-export.js";
 import {setupTableButtons} from "./tables-out.js";
-import {loadSaved, save} from "./store.js";
+import {loadSaved, save, textSaver} from "./store.js";
 import {renderFacts, renderSummary} from "./summary.js";
 import {markSelected, renderBranchTable, renderNodeTable} from "./tables.js";
 import {createSweep} from "./sweep.js";
@@ -562,7 +562,16 @@ async function exportCurrentSheet() {
 }
 
 async function init() {
-  editor = createEditor({textarea: $("editor-text"), gutter: $("gutter"), backdrop: $("backdrop")});
+  const remember = textSaver(() => editor.getText());
+  editor = createEditor({
+    textarea: $("editor-text"), scroller: $("editor-scroll"), gutter: $("gutter"), backdrop: $("backdrop"),
+    onChange() {                        // typed, pasted, cut, undone or redone
+      $("samples").value = "";          // the editor no longer holds the sample as loaded
+      remember();
+      scheduleCheck();
+      showEdited();
+    },
+  });
   const saved = loadSaved();
   showMagnitudesAs(saved.magnitudes);
   for (const b of document.querySelectorAll("#amps-switch button")) {
@@ -584,14 +593,6 @@ async function init() {
   });
   if (saved.sort && typeof saved.sort === "object") state.sort = saved.sort;
 
-  const textarea = $("editor-text");
-  const remember = debounce(() => save({netlist: editor.getText()}), 200);
-  textarea.addEventListener("input", () => {
-    $("samples").value = "";          // the editor no longer holds the sample as loaded
-    remember();
-    scheduleCheck();
-    showEdited();
-  });
   window.addEventListener("beforeunload", () => remember.flush());
   document.addEventListener("keydown", (event) => {
     if ((event.ctrlKey || event.metaKey) && event.key === "Enter") {

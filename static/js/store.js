@@ -1,8 +1,16 @@
 // What survives a reload: the circuit text and the view settings, in localStorage.
+// The text has a key of its own: writing a setting does not rewrite a megabyte of
+// circuit, and writing the circuit is one setItem with no JSON around it.
 
 const KEY = "phasorbench.workbench.v1";
+const TEXT = "phasorbench.netlist.v1";
+// The text is written after this long without an edit, in the browser's idle time: a
+// megabyte's write then never lands between two keys of someone typing.
+const TEXT_QUIET_MS = 300;
+const BIG_TEXT_QUIET_MS = 1500;
+const BIG_TEXT = 100_000;
 
-export function loadSaved() {
+function readSettings() {
   try {
     const saved = JSON.parse(localStorage.getItem(KEY) || "{}");
     return saved && typeof saved === "object" ? saved : {};
@@ -11,12 +19,60 @@ export function loadSaved() {
   }
 }
 
-export function save(patch) {
+/** The settings kept, with the circuit's text as `netlist` (when there is one). */
+export function loadSaved() {
+  const saved = readSettings();
   try {
-    localStorage.setItem(KEY, JSON.stringify({...loadSaved(), ...patch}));
+    const text = localStorage.getItem(TEXT);
+    if (typeof text === "string") saved.netlist = text;
+  } catch {
+    // storage disabled: nothing kept
+  }
+  return saved;
+}
+
+export function save(patch) {
+  const {netlist, ...rest} = patch;
+  try {
+    if (typeof netlist === "string") localStorage.setItem(TEXT, netlist);
+    const settings = readSettings();
+    // a text kept by an earlier version of the page, beside the settings, moves out
+    if (Object.keys(rest).length || "netlist" in settings) {
+      delete settings.netlist;
+      localStorage.setItem(KEY, JSON.stringify({...settings, ...rest}));
+    }
   } catch {
     // Storage full or disabled (private window): the page still works, it just forgets.
   }
+}
+
+/**
+ * Keep the text `getText()` gives after a quiet spell, in idle time: call the result
+ * after each edit; its `flush()` writes a waiting text at once (the page unloading).
+ */
+export function textSaver(getText) {
+  let timer = null;
+  let idle = null;
+  const idleCall = window.requestIdleCallback || ((fn) => setTimeout(fn, 0));
+  const idleCancel = window.cancelIdleCallback || clearTimeout;
+  const write = () => {
+    timer = idle = null;
+    save({netlist: getText()});
+  };
+  const soon = () => {
+    clearTimeout(timer);
+    if (idle !== null) idleCancel(idle);
+    idle = null;
+    const quiet = getText().length > BIG_TEXT ? BIG_TEXT_QUIET_MS : TEXT_QUIET_MS;
+    timer = setTimeout(() => { timer = null; idle = idleCall(write, {timeout: 5000}); }, quiet);
+  };
+  soon.flush = () => {
+    if (timer === null && idle === null) return;
+    clearTimeout(timer);
+    if (idle !== null) idleCancel(idle);
+    write();
+  };
+  return soon;
 }
 
 // Named circuits kept in this browser: {name: {text, saved}} under a key of their own, so

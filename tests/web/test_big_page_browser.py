@@ -167,7 +167,8 @@ def test_a_windowed_table_shows_the_blocks_and_phases_the_full_table_shows(
 
 
 #: Where the gutter draws line number ``line`` and where the textarea draws that line
-#: (page y of each top edge), and the numbers the gutter holds.
+#: (page y of each top edge; the textarea holds a window of lines from its
+#: data-first-line on), the text it draws there, and the numbers the gutter holds.
 GUTTER_JS = """line => {
   const t = document.getElementById("editor-text");
   const numbers = document.querySelector("#gutter .numbers");
@@ -175,8 +176,10 @@ GUTTER_JS = """line => {
   const shown = numbers.textContent.trim().split("\\n").map(Number);
   const pad = (node) => parseFloat(getComputedStyle(node).paddingTop) || 0;
   const gutterY = numbers.getBoundingClientRect().top + pad(numbers) + (line - shown[0]) * h;
-  const textY = t.getBoundingClientRect().top + pad(t) + (line - 1) * h - t.scrollTop;
-  return {gutterY, textY, first: shown[0], last: shown[shown.length - 1], count: shown.length};
+  const first = Number(t.dataset.firstLine);
+  const textY = t.getBoundingClientRect().top + pad(t) + (line - first) * h - t.scrollTop;
+  return {gutterY, textY, first: shown[0], last: shown[shown.length - 1], count: shown.length,
+          text: t.value.split("\\n")[line - first]};
 }"""
 
 
@@ -189,8 +192,8 @@ def test_the_gutter_numbers_the_lines_in_view_of_a_long_circuit(new_page, live_s
     # can stand (common practice, no source: every editor numbers that line too)
     lines = len(text.splitlines()) + 1
     for line in (5001, lines):
-        page.evaluate("line => { const t = document.getElementById('editor-text');"
-                      " t.scrollTop = (line - 1) * parseFloat(getComputedStyle(t).lineHeight); }",
+        page.evaluate("line => { const s = document.getElementById('editor-scroll');"
+                      " s.scrollTop = (line - 1) * parseFloat(getComputedStyle(s).lineHeight); }",
                       line)
         page.wait_for_timeout(300)                   # the scroll event has run
         at = page.evaluate(GUTTER_JS, line)
@@ -198,5 +201,6 @@ def test_the_gutter_numbers_the_lines_in_view_of_a_long_circuit(new_page, live_s
         # with it; the gutter holds the numbers around the view, not all 6,004
         assert at["first"] <= line <= at["last"]
         assert abs(at["gutterY"] - at["textY"]) < 1.0
+        assert at["text"] == text.split("\n")[line - 1]
         assert at["count"] < 1000
     assert at["last"] == lines

@@ -188,9 +188,9 @@ def test_editor_marks_long_lines_and_opens_notes_whole(new_page, live_server, ar
     assert page.eval_on_selector("#check-state", "e => e.getClientRects().length") == 1
     line_height = page.eval_on_selector("#check-state", "e => parseFloat(getComputedStyle(e).lineHeight)")
     assert badge.bounding_box()["height"] <= 1.5 * line_height
-    # Line 3 goes on past the editor's edge: sideways scrolling is there and drawn, and
-    # the line carries a mark at the edge.
-    area = page.eval_on_selector("#editor-text", """t => ({sw: t.scrollWidth, cw: t.clientWidth,
+    # Line 3 goes on past the editor's edge: sideways scrolling (of the text's scroll
+    # box, textwindow.js) is there and drawn, and the line carries a mark at the edge.
+    area = page.eval_on_selector("#editor-scroll", """t => ({sw: t.scrollWidth, cw: t.clientWidth,
         ox: getComputedStyle(t).overflowX, bar: t.offsetHeight - t.clientHeight})""")
     assert area["sw"] > area["cw"] and area["ox"] == "scroll"
     assert page.locator('.overlay [data-line="3"].cut').count() == 1
