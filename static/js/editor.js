@@ -168,6 +168,13 @@ export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
     }
     overlay.style.width = `${view}px`;
     overlay.style.height = `${scroller.clientHeight}px`;
+    // the same marks as drawn (a key typed on a line that stays within the edge) are
+    // left alone, so typing does not repaint the layer (an open note's side of its line
+    // depends on the scroll too)
+    const drawn = nodes.map((n) => `${n.className}|${n.dataset.line}|${n.style.cssText}|${n.textContent}`)
+      .join("\n") + (caret && marks.has(caret) ? `|${scroller.scrollTop}` : "");
+    if (drawn === overlayDrawn) return;
+    overlayDrawn = drawn;
     overLines.replaceChildren(...nodes);
     // An open note near the foot of the editor opens above its line instead.
     const open = overLines.querySelector(".note.open");
@@ -189,11 +196,12 @@ export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
       .map(([line, list]) => markedLine(all[line - 1], list)));
     // The backdrop is as tall as the text, so marks scroll with it.
     backLines.style.height = `calc(${all.length} * var(--line))`;
-    syncScroll();
+    queueOverlay();
   }
   // The lines and marks of the last render, reused while scrolling and moving the caret.
   let shown = {all: [], marks: new Map()};
   let overlayQueued = false;
+  let overlayDrawn = "";
   function queueOverlay() {
     if (overlayQueued) return;
     overlayQueued = true;

@@ -34,9 +34,10 @@ export function loadSaved() {
 export function save(patch) {
   const {netlist, ...rest} = patch;
   try {
-    if (typeof netlist === "string") localStorage.setItem(TEXT, netlist);
     const settings = readSettings();
     // a text kept by an earlier version of the page, beside the settings, moves out
+    const older = typeof settings.netlist === "string" && localStorage.getItem(TEXT) === null;
+    if (typeof netlist === "string" || older) localStorage.setItem(TEXT, typeof netlist === "string" ? netlist : settings.netlist);
     if (Object.keys(rest).length || "netlist" in settings) {
       delete settings.netlist;
       localStorage.setItem(KEY, JSON.stringify({...settings, ...rest}));

@@ -16,9 +16,9 @@
 // Texts of up to this many lines are held whole in the textarea.
 export const FULL_LINES = 1000;
 // Lines kept beyond each edge of the view.
-const MARGIN = 200;
+const MARGIN = 100;
 // The window moves when the view comes within this many lines of its edge.
-const NEAR = 60;
+const NEAR = 30;
 const UNDO_DEPTH = 300;
 // Edits of one line within this time, caret to caret, are undone together.
 const MERGE_MS = 1500;
@@ -49,8 +49,10 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
   const style = getComputedStyle(textarea);
   const pad = {top: parseFloat(style.paddingTop) || 0, bottom: parseFloat(style.paddingBottom) || 0,
                left: parseFloat(style.paddingLeft) || 0, right: parseFloat(style.paddingRight) || 0};
-  const lineHeight = () => parseFloat(getComputedStyle(textarea).lineHeight) || 20;
+  let height = 0;             // of a line, px (read again when the box is resized)
+  const lineHeight = () => height || (height = parseFloat(getComputedStyle(textarea).lineHeight) || 20);
   const measure = () => (charWidth = probe.getBoundingClientRect().width / 10 || charWidth || 8);
+  let viewLines = 40;         // lines the box shows, as last measured
 
   const windowed = () => from > 0 || to < lines.length;
   const pos = (line, col) => ({line, col});
@@ -106,15 +108,22 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
   function view() {
     const h = lineHeight();
     const first = Math.max(0, Math.floor((scroller.scrollTop - pad.top) / h));
-    return [first, first + Math.ceil((scroller.clientHeight || 600) / h) + 1];
+    viewLines = Math.ceil((scroller.clientHeight || 600) / h) + 1;
+    return [first, first + viewLines];
   }
 
+  // the sizes as last set: a key that changes none of them writes no style
+  let sized = "";
   function size() {
     const h = lineHeight();
+    const w = Math.ceil(pad.left + pad.right + (widest + 2) * (charWidth || measure()));
+    const now = `${lines.length} ${from} ${to} ${w}`;
+    if (now === sized) return;
+    sized = now;
     spacer.style.height = `${pad.top + pad.bottom + lines.length * h}px`;
     textarea.style.top = `${from * h}px`;
     textarea.style.height = `${pad.top + pad.bottom + (to - from) * h}px`;
-    textarea.style.width = `${Math.ceil(pad.left + pad.right + (widest + 2) * (charWidth || measure()))}px`;
+    textarea.style.width = `${w}px`;
     textarea.dataset.firstLine = String(from + 1);
   }
 
@@ -224,12 +233,13 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
     shown = value;
     if (from === 0 && to === lines.length) text = value;
     size();
-    textarea.scrollTop = textarea.scrollLeft = 0;
     const kind = before && /^(insertText|deleteContent(Backward|Forward))$/.test(before.type) ? before.type : "";
     record({at: start + a, removed, inserted, kind, time: Date.now(),
             before: (before && before.sel) || selection(), after: selection()});
     before = null;
-    follow();
+    // typing leaves the window where it is; a paste may make it the wrong size
+    const whole = lines.length <= FULL_LINES;
+    if (whole ? from !== 0 || to !== lines.length : to - from > 3 * (viewLines + 2 * MARGIN)) follow(true);
     if (onChange) onChange();
   }
 
@@ -279,9 +289,11 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
       bring(sel);
       return;
     }
-    const quiet = ["Shift", "Control", "Alt", "Meta", "CapsLock"].includes(event.key) ||
-      (mod && (key === "c" || key === "a"));
-    if (parked && !quiet) bring(parked);
+    // a key that types, deletes or moves the caret brings a caret scrolled away back
+    const typing = !mod && (event.key.length === 1 || event.key === "Process" ||
+                            ["Enter", "Backspace", "Delete", "Tab"].includes(event.key));
+    const moving = /^(Arrow|Page)/.test(event.key) || event.key === "Home" || event.key === "End";
+    if (parked && (typing || moving || (mod && (key === "v" || key === "x")))) bring(parked);
   }
 
   textarea.addEventListener("keydown", keydown);
@@ -314,7 +326,17 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
     place(0, 1, {start: pos(0, 0), end: pos(0, 0)});
     if (onChange) onChange();
   });
-  textarea.addEventListener("pointerdown", () => { parked = null; dragging = true; });
+  textarea.addEventListener("pointerdown", (event) => {
+    dragging = true;
+    if (!parked) return;
+    const sel = parked;
+    parked = null;
+    if (!event.shiftKey) return;
+    // Shift+click extends from the caret scrolled away: the window takes in both
+    const [first, last] = view();
+    place(Math.max(0, Math.min(sel.start.line, first - MARGIN)),
+          Math.min(lines.length, Math.max(sel.end.line + 1, last + MARGIN)), sel);
+  });
   window.addEventListener("pointerup", () => { if (dragging) { dragging = false; follow(); } });
   window.addEventListener("pointercancel", () => { dragging = false; });
   // the textarea fits its text: a scroll of its own (the caret revealed before the
@@ -326,8 +348,8 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
     textarea.scrollTop = textarea.scrollLeft = 0;
   });
   scroller.addEventListener("scroll", () => follow());
-  new ResizeObserver(() => { measure(); size(); follow(); }).observe(scroller);
-  if (document.fonts) document.fonts.ready.then(() => { measure(); size(); });
+  new ResizeObserver(() => { height = 0; measure(); sized = ""; size(); follow(); }).observe(scroller);
+  if (document.fonts) document.fonts.ready.then(() => { measure(); sized = ""; size(); });
 
   function getText() {
     if (text === null) text = lines.join("\n");
