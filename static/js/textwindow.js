@@ -158,9 +158,11 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
   /** Move the window when the view nears its edge (or `force`). */
   function follow(force = false) {
     if (composing) return;
+    // not while the mouse selects: a new text under a drag loses where it started
+    // (the drag stops at the window's edge; the window moves when the button is let go)
+    if (!force && dragging) return;
     const [first, last] = view();
     const inside = first >= from && last <= to;
-    if (!force && dragging && inside) return;
     const near = (first - from < NEAR && from > 0) || (to - last < NEAR && to < lines.length);
     const tooBig = to - from > 3 * (last - first + 2 * MARGIN);
     const wrong = lines.length <= FULL_LINES ? (from !== 0 || to !== lines.length) : (near || tooBig);
@@ -272,6 +274,7 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
   }
 
   function keydown(event) {
+    before = null;              // a beforeinput left without its input (cancelled) is stale
     const mod = event.ctrlKey || event.metaKey;
     const key = event.key.toLowerCase();
     if (mod && !event.altKey && (key === "z" || key === "y")) {
@@ -337,8 +340,11 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
     place(Math.max(0, Math.min(sel.start.line, first - MARGIN)),
           Math.min(lines.length, Math.max(sel.end.line + 1, last + MARGIN)), sel);
   });
-  window.addEventListener("pointerup", () => { if (dragging) { dragging = false; follow(); } });
-  window.addEventListener("pointercancel", () => { dragging = false; });
+  const dropped = () => { if (dragging) { dragging = false; follow(); } };
+  window.addEventListener("pointerup", dropped);
+  window.addEventListener("pointercancel", dropped);
+  // a button let go where no pointerup came (outside the window)
+  window.addEventListener("pointermove", (event) => { if (dragging && !event.buttons) dropped(); });
   // the textarea fits its text: a scroll of its own (the caret revealed before the
   // size caught up) is handed to the box
   textarea.addEventListener("scroll", () => {

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import pytest
 
+from .conftest import BENCH_CIRCUIT
 from .test_big_circuits import ladder
 from .test_big_page_browser import paste
 from .test_browser import TIMEOUT_MS, open_page
@@ -225,3 +226,24 @@ def test_error_marks_land_on_their_line_far_down(new_page, live_server, artifact
     assert box["y"] < y < box["y"] + box["height"] - 20
     page.wait_for_selector(f'.overlay .note.open[data-line="{FAR + 1}"], '
                            f'.overlay .note[data-line="{FAR + 1}"]', timeout=TIMEOUT_MS)
+
+
+def test_undo_in_a_short_circuit_held_whole(new_page, live_server):
+    page = new_page()
+    open_page(page, live_server)
+    assert page.input_value("#editor-text") == BENCH_CIRCUIT      # the first sample
+    page.click("#editor-text")
+    page.keyboard.press("Control+End")
+    page.keyboard.type("# one")
+    page.keyboard.press("Enter")
+    page.keyboard.type("# two")
+    assert page.input_value("#editor-text") == BENCH_CIRCUIT + "# one\n# two"
+    # common practice, no source: undo takes back the typing step by step, redo brings
+    # it again (the editor's own history, the same as in a long circuit)
+    page.keyboard.press("Control+z")
+    assert page.input_value("#editor-text") == BENCH_CIRCUIT + "# one\n"
+    page.keyboard.press("Control+z")
+    page.keyboard.press("Control+z")
+    assert page.input_value("#editor-text") == BENCH_CIRCUIT
+    page.keyboard.press("Control+y")
+    assert page.input_value("#editor-text") == BENCH_CIRCUIT + "# one"
