@@ -10,6 +10,7 @@ numbers to the last bit.
 
 from __future__ import annotations
 
+import io
 import json
 import math
 from collections.abc import Mapping
@@ -88,24 +89,28 @@ def dumps_in_pieces(data) -> bytes:
     When orjson refuses some text the whole answer goes through ``dumps``' fallback, so
     the bytes are always those of ``dumps``.
 
+    The pieces go straight into one growing buffer (``io.BytesIO``, whose ``getvalue``
+    hands its bytes over without a copy), so the answer is held once, never as a list
+    of pieces beside their join.
+
     >>> big = {"n": list(range(2000)), "m": {str(i): [i, 0.5] for i in range(900)}}
     >>> dumps_in_pieces(big) == dumps(big)
     True
     """
-    pieces: list[bytes] = []
+    out = io.BytesIO()
     try:
-        _pieces(data, pieces)
+        _pieces(data, out.write)
     except (orjson.JSONEncodeError, TypeError):
         return dumps(data)
-    return b"".join(pieces)
+    return out.getvalue()
 
 
 def _one(value) -> bytes:
     return orjson.dumps(value, default=_default, option=_OPTIONS)
 
 
-def _pieces(value, out: list[bytes]) -> None:
-    """Append the JSON of ``value`` to ``out`` in pieces (see ``dumps_in_pieces``).
+def _pieces(value, write) -> None:
+    """``write`` the JSON of ``value`` in pieces (see ``dumps_in_pieces``).
 
     A long dict or list (more than ``PIECE`` entries) is written ``PIECE`` entries per
     call, whatever their size; a short one that holds long containers has each of its
@@ -113,30 +118,27 @@ def _pieces(value, out: list[bytes]) -> None:
     """
     kind = type(value)
     if not _big(value):
-        out.append(_one(value))
-    elif len(value) > PIECE:
-        entries = iter(value.items() if kind is dict else value)
-        parts = []
+        write(_one(value))
+        return
+    write(b"{" if kind is dict else b"[")
+    entries = value.items() if kind is dict else value
+    if len(value) > PIECE:
+        entries = iter(entries)
+        comma = False
         while chunk := kind(islice(entries, PIECE)):
-            parts.append(_one(chunk)[1:-1])
-        out.append((b"{" if kind is dict else b"[") + b",".join(parts) +
-                   (b"}" if kind is dict else b"]"))
+            if comma:
+                write(b",")
+            write(memoryview(_one(chunk))[1:-1])
+            comma = True
     else:
-        parts = []
-        for entry in (value.items() if kind is dict else value):
-            inner: list[bytes] = []
+        for index, entry in enumerate(entries):
+            if index:
+                write(b",")
             if kind is dict:
                 key, entry = entry
-                inner.append(_one({key: 0})[1:-2])      # the key as orjson writes it, ':'
-            _pieces(entry, inner)
-            parts.append(b"".join(inner))
-        out.append((b"{" if kind is dict else b"[") + b",".join(parts) +
-                   (b"}" if kind is dict else b"]"))
-
-
-def _long(value) -> bool:
-    """A plain dict or list of more than ``PIECE`` entries."""
-    return type(value) in (dict, list) and len(value) > PIECE
+                write(memoryview(_one({key: 0}))[1:-2])  # the key as orjson writes it, ':'
+            _pieces(entry, write)
+    write(b"}" if kind is dict else b"]")
 
 
 def _big(value) -> bool:

@@ -19,7 +19,7 @@ from pydantic_core import PydanticCustomError
 
 from ..errors import NUMERIC_RANGE_ERRORS, CircuitError, out_of_range
 from . import answers, jobs
-from .jsonsafe import EncodedJSONResponse, StrictJSONResponse, encoded, utf8
+from .jsonsafe import EncodedJSONResponse, SlicedResponse, StrictJSONResponse, encoded, utf8
 from .samples import list_samples
 from ..presentation.rows import MAX_WINDOW, ROW_WINDOW
 from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX
@@ -394,12 +394,13 @@ async def table(body: TableBody, request: Request):
     """One table of the solved circuit for a spreadsheet: units in the headings, numbers
     as numbers (never more digits than the solve trusts), a source's current and power
     the delivered ones; ``text/csv`` as an attachment, or ``text/tab-separated-values``."""
-    def respond(text: bytes) -> Response:
+    def respond(text: bytes) -> SlicedResponse:
         if body.format == "tsv":
-            return Response(text, media_type="text/tab-separated-values; charset=utf-8",
-                            headers={"X-Content-Type-Options": "nosniff",
-                                     "Cache-Control": "no-store"})
-        return Response(text, media_type="text/csv; charset=utf-8", headers={
+            return SlicedResponse(text,
+                                  media_type="text/tab-separated-values; charset=utf-8",
+                                  headers={"X-Content-Type-Options": "nosniff",
+                                           "Cache-Control": "no-store"})
+        return SlicedResponse(text, media_type="text/csv; charset=utf-8", headers={
             "Content-Disposition": f'attachment; filename="{body.table}.csv"',
             "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
     return await run_job(request, answers.table_answer, body.netlist, body.table,

@@ -12,13 +12,13 @@ from __future__ import annotations
 from typing import Literal
 
 from fastapi import Request
-from fastapi.responses import Response
 from pydantic import BaseModel, Field
 
 from ..errors import CircuitError, Diagnostic
 from ..model import VOLTAGE_KINDS
 from . import api
 from .answers import _read
+from .jsonsafe import SlicedResponse
 from .settings import MAX_PICTURE_PX, MIN_PICTURE_PX, Settings
 
 #: Largest points × unknowns of one sweep request.
@@ -169,8 +169,8 @@ async def sweep_csv(body: SweepBody, request: Request):
                              respond=_csv_response)
 
 
-def _csv_response(text: bytes) -> Response:
-    return Response(text, media_type="text/csv; charset=utf-8", headers={
+def _csv_response(text: bytes) -> SlicedResponse:
+    return SlicedResponse(text, media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": 'attachment; filename="frequency-response.csv"',
         "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
 
