@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import math
 import os
 import queue
@@ -13,6 +14,12 @@ import threading
 import httpx
 
 from .conftest import CAP_CIRCUIT, ROOT, free_port
+
+
+#: A 1,500-section RC ladder (invented values): an answer of a few megabytes.
+LADDER = "title ladder\nfrequency 50 Hz\nV1: voltage n0 -> 0 230 V\n" + "".join(
+    f"R{k}: resistor n{k} -> n{k + 1} {1 + k % 7} ohm\nC{k}: capacitor n{k + 1} -> 0 "
+    f"{10 + k % 5} uF\n" for k in range(1500))
 
 
 def test_serve_prints_the_url_and_answers(tmp_path):
@@ -36,6 +43,18 @@ def test_serve_prints_the_url_and_answers(tmp_path):
             assert math.isclose(solved.json()["elements"]["C1"]["current"]["mag"], 0.722566,
                                 rel_tol=1e-6)
             samples = client.get("/api/samples").json()
+            # A big answer crosses the socket in 1 MiB slices (jsonsafe.SlicedResponse):
+            # RFC 9110 section 8.6, Content-Length counts the whole body; the numbers are
+            # the command line's to the last bit (the contract is one, issue 10).
+            big = client.post("/api/solve", json={"netlist": LADDER, "contract": True})
+            assert big.status_code == 200 and len(big.content) > 1.5 * 2**20   # > one slice
+            assert int(big.headers["content-length"]) == len(big.content)
+            cli = subprocess.run([sys.executable, "-m", "phasorbench", "solve", "--json", "-"],
+                                 input=LADDER, capture_output=True, text=True, env=env,
+                                 check=True)
+            shown = big.json()
+            shown.pop("display", None)
+            assert shown == json.loads(cli.stdout)
             assert {s["name"] for s in samples} == {p.stem for p in (ROOT / "samples").glob("*.circuit")}
     finally:
         proc.send_signal(signal.SIGINT)
