@@ -31,7 +31,11 @@ def _sent(response) -> list[dict]:
 
     async def receive():
         return {"type": "http.request", "body": b"", "more_body": False}
-    asyncio.run(response({"type": "http", "method": "GET", "path": "/"}, receive, send))
+    # its own thread: the browser tests' driver may hold a running loop in this one
+    from concurrent.futures import ThreadPoolExecutor
+    with ThreadPoolExecutor(1) as pool:
+        pool.submit(asyncio.run, response({"type": "http", "method": "GET", "path": "/"},
+                                          receive, send)).result()
     return messages
 
 
