@@ -15,6 +15,7 @@
 // is on its line the note opens whole, wrapped, in a box under the line.
 
 import {el} from "./dom.js";
+import {createFindBar} from "./findbar.js";
 import {columns, createTextWindow} from "./textwindow.js";
 
 const MARK = {error: "✖", warning: "▲"};
@@ -24,7 +25,7 @@ const MARK = {error: "✖", warning: "▲"};
 const NUMBER_MARGIN = 200;
 
 /** The editor; `onChange` runs after every edit of the person's (not after setText). */
-export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
+export function createEditor({textarea, scroller, gutter, backdrop, findBar, findOpener, onChange}) {
   const code = scroller.parentElement;
   const overlay = el("div", {class: "overlay", "aria-hidden": "true"});
   const overLines = el("div", {class: "lines"});
@@ -37,6 +38,7 @@ export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
   const text = createTextWindow({
     textarea, scroller, spacer, probe,
     onChange() {
+      if (finder) finder.changed();
       render();
       if (onChange) onChange();
     },
@@ -194,6 +196,7 @@ export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
     renderGutter(all.length, marks);
     backLines.replaceChildren(...[...marks].filter(([line]) => line <= all.length)
       .map(([line, list]) => markedLine(all[line - 1], list)));
+    if (hit) backLines.append(hit);
     // The backdrop is as tall as the text, so marks scroll with it.
     backLines.style.height = `calc(${all.length} * var(--line))`;
     queueOverlay();
@@ -240,6 +243,25 @@ export function createEditor({textarea, scroller, gutter, backdrop, onChange}) {
     text.setText(value);
     render();
   }
+
+  // The find bar's current match, drawn on the backdrop (the textarea shows its
+  // selection only while it has the focus, and the focus is in the bar's box).
+  let hit = null;
+  function markHit(found) {
+    if (hit) hit.remove();
+    hit = null;
+    if (!found) return;
+    const {charWidth} = text.metrics();
+    const line = lines()[found.line] || "";
+    const left = columns(line.slice(0, found.col));
+    const width = columns(line.slice(0, found.col + found.length)) - left;
+    hit = el("div", {class: "find-hit", dataset: {line: found.line + 1},
+                     style: `top: calc(${found.line} * var(--line)); left: ${left * charWidth}px; ` +
+                            `width: ${Math.max(1, width) * charWidth}px`});
+    backLines.append(hit);
+  }
+  const finder = findBar ? createFindBar({bar: findBar, text, textarea, mark: markHit,
+                                          opener: findOpener}) : null;
 
   scroller.addEventListener("scroll", syncScroll);
   document.addEventListener("selectionchange", caretMoved);

@@ -583,6 +583,7 @@ async function init() {
   const remember = textSaver(() => editor.getText());
   editor = createEditor({
     textarea: $("editor-text"), scroller: $("editor-scroll"), gutter: $("gutter"), backdrop: $("backdrop"),
+    findBar: $("find-bar"), findOpener: $("find-open"),
     onChange() {                        // typed, pasted, cut, undone or redone
       if ($("samples").value) $("samples").value = "";    // the editor no longer holds the sample as loaded
       remember();

@@ -395,6 +395,12 @@ export function createTextWindow({textarea, scroller, spacer, probe, onChange, o
       textarea.focus();
       bring({start: p, end: p});
     },
+    /** The selection in text positions ({start, end}: {line, col}, from 0). */
+    selection: () => selection(),
+    /** Select from (line, col) to (line, col), all from 0, in the window and in view. */
+    selectRange(startLine, startCol, endLine, endCol) {
+      bring({start: pos(startLine, startCol), end: pos(endLine, endCol)});
+    },
     metrics: () => ({lineHeight: lineHeight(), charWidth: charWidth || measure(), padTop: pad.top,
                      padLeft: pad.left}),
     window: () => ({from, to}),
