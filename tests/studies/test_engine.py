@@ -100,3 +100,28 @@ def test_a_singular_frequency_is_reported_and_the_rest_solved(beside):
         w = 2 * np.pi * f
         want = 1 / (1 / (1j * w) + 1j * w)         # Z of L ∥ C, formula
         assert abs(v[k] - want) <= 1e-12 * abs(want)
+
+
+@pytest.mark.parametrize("sections", [4, BANDED, DENSE_LIMIT])
+def test_an_engine_for_other_probes_gives_a_new_engines_bits(sections):
+    # The scan's engine asked for one of its probes alone (the harmonic study's peak
+    # refinement) after it solved other frequencies, its column order kept from them.
+    body = _ladder(sections)
+    circuit = read_circuit("frequency 50 Hz\n" + body)
+    scan = SweepEngine(circuit, parse_probes(["Z(n2)", "Z(n1, n3)", "V(n2)"], circuit))
+    scan.response(list(np.geomspace(20.0, 2000.0, 7)))
+    zeroed = body.replace("230 V phase 10 deg", "0 V").replace("2 A phase -40 deg", "0 A")
+    for probe in parse_probes(["Z(n1, n3)", "V(n2)"], circuit):
+        alone = scan.for_probes([probe])
+        assert alone.probes == [probe] and list(alone.response([50.0]).values) == [probe.text]
+        for f in (50.0, 733.0, 1234.5):
+            got = alone.response([f]).values[probe.text][0]
+            new = SweepEngine(circuit, [probe]).response([f]).values[probe.text][0]
+            # common practice, no source: the same arithmetic, so the same bits
+            assert (got.real.hex(), got.imag.hex()) == (new.real.hex(), new.imag.hex())
+            if probe.text == "V(n2)":
+                want = _phasor(solve_text(f"frequency {f!r} Hz\n" + body)["nodes"]["n2"])
+            else:
+                two = solve_text(f"frequency {f!r} Hz\n{zeroed}Itest: current n3 -> n1 1 A\n")
+                want = _phasor(two["nodes"]["n1"]) - _phasor(two["nodes"]["n3"])
+            assert abs(got - want) <= 1e-12 * abs(want)      # numpy/scipy numerics

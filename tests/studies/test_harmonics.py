@@ -297,3 +297,40 @@ def test_big_circuits_keep_order_detail_for_sources_capacitors_and_asked_element
     assert with_orders == {"Vs", "Cb", "R7"}
     r3 = r["elements"]["R3"]
     assert r3["p_w"] == pytest.approx(r3["rms_i"] ** 2 * 1.0, rel=1e-9)
+
+
+def test_the_resonance_scan_builds_one_engine_for_every_peak(monkeypatch):
+    # Two capacitors, each behind its own inductor on an ideal bus (the source), and a
+    # string of 130 resistors across the source that makes the system big enough for the
+    # sparse path (SuperLU with a kept column order); the string cannot move the peaks.
+    from phasorbench.studies import engine, linear
+    w = 2 * math.pi * 60
+    string = "".join(f"Rs{k}: resistor r{k} -> r{k + 1} 1 ohm\n" for k in range(130))
+    text = ("frequency 60 Hz\nVs: voltage s -> 0 277 V spectrum 5: 3 %\n"
+            f"Ls1: inductor s -> b1 {0.013248 / w!r} H\n"
+            f"Cb1: capacitor b1 -> 0 {1 / (w * 0.768)!r} F\n"
+            f"Ls2: inductor s -> b2 {0.02 / w!r} H\n"
+            f"Cb2: capacitor b2 -> 0 {1 / (w * 0.72)!r} F\n"
+            "Rs: resistor s -> r0 1 ohm\n" + string + "Rend: resistor r130 -> 0 1 ohm\n")
+    circuit = read_circuit(text, "<test>")
+    counts = {"assemble": 0, "ordering": 0}
+    assemble, first = engine.assemble, linear.KeptOrder._first
+
+    def counted_assemble(*args, **kwargs):
+        counts["assemble"] += 1
+        return assemble(*args, **kwargs)
+
+    def counted_first(self, *args, **kwargs):
+        counts["ordering"] += 1
+        return first(self, *args, **kwargs)
+    monkeypatch.setattr(engine, "assemble", counted_assemble)
+    monkeypatch.setattr(linear.KeptOrder, "_first", counted_first)
+    r = run_harmonics(circuit)
+    # check-values C19 (common practice rule h = √(X_C/X_L), exact for an ideal bus):
+    # 7.61387 for Cb1; √(0.72/0.02) = 6 for Cb2
+    assert r["capacitors"]["Cb1"]["resonance_orders"] == [pytest.approx(7.61387, rel=5e-6)]
+    assert r["capacitors"]["Cb2"]["resonance_orders"] == [pytest.approx(6.0, rel=5e-6)]
+    # common practice, no source: one engine (two assemblies, at 1 Hz and 2 Hz, to learn
+    # the pattern) and one column ordering serve the scan and both refinements; a new
+    # engine per peak would be 2 + 2·2 assemblies and 1 + 2 orderings
+    assert counts == {"assemble": 2, "ordering": 1}

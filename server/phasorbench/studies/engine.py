@@ -17,6 +17,7 @@ not raised: its values are NaN and its index is listed.
 
 from __future__ import annotations
 
+import copy
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -72,7 +73,7 @@ class SweepEngine:
     for every later point: the factor then skips the ordering."""
 
     def __init__(self, circuit: Circuit, probes: list[Probe]):
-        self.circuit, self.probes = circuit, probes
+        self.circuit = circuit
         low, high = assemble(circuit, 1.0), assemble(circuit, 2.0)
         self.system = low
         size = self.size = low["size"]
@@ -114,9 +115,7 @@ class SweepEngine:
         fixed = parts[0][~moving]
         self._fixed = np.flatnonzero(~moving)
         self._fixed_values = rounded(fixed, sizes[0][~moving])
-        self._keys, self._rhs = _right_hand_sides(low, probes)
-        self._readers = {p.text: [_reader(part, low, circuit, self._keys)
-                                  for part in p.parts()] for p in probes}
+        self._take_probes(probes)
         self.dense = size <= DENSE_LIMIT
         self._kept = KeptOrder(self._csc_indices, self._csc_indptr, size)
         # row sums of entry-by-entry products: the residual A·x from the pattern
@@ -124,6 +123,23 @@ class SweepEngine:
                                        np.arange(self.entries))),
                                       shape=(size, self.entries))
         self._band = Band.of(self._rows, self._cols, size) if self.dense else None
+
+    def _take_probes(self, probes: list[Probe]) -> None:
+        """The probes' right-hand sides (the sources' column, one unit-current column
+        per ``Z`` pair) and their readers: all of the engine that depends on them."""
+        self.probes = probes
+        self._keys, self._rhs = _right_hand_sides(self.system, probes)
+        self._readers = {p.text: [_reader(part, self.system, self.circuit, self._keys)
+                                  for part in p.parts()] for p in probes}
+
+    def for_probes(self, probes: list[Probe]) -> "SweepEngine":
+        """An engine for other probes of the same circuit that shares this one's
+        pattern, stamps, band order and kept column order (nothing is assembled or
+        ordered again): its right-hand sides are those a new ``SweepEngine(circuit,
+        probes)`` would have, so every point it solves has the same bits."""
+        other = copy.copy(self)
+        other._take_probes(probes)
+        return other
 
     @property
     def entries(self) -> int:

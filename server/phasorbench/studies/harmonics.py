@@ -405,7 +405,9 @@ def _resonance_orders(circuit, names, orders) -> dict[str, list[float]]:
                 continue
             if abs(mag[k] - mag[k - 1]) <= 1e-9 * scale:
                 continue
-            f0 = peak_frequency(SweepEngine(circuit, [probe]), probe, frequencies[k - 1],
+            # the scan's engine, asked for this probe alone: its pattern, stamps and
+            # column order serve every peak (refining a peak builds nothing)
+            f0 = peak_frequency(engine.for_probes([probe]), probe, frequencies[k - 1],
                                 frequencies[k + 1])
             found.append(f0 / f1)
         out[name] = found
