@@ -70,3 +70,37 @@ def test_resonance_markers_are_numbered_at_their_frequency():
     # check-values C5: f0 = 7957.75 Hz
     assert math.isclose(float(marker.get("data-frequency")), 7957.75, rel_tol=1e-6)
     assert "Q 25" in marker.find(f"{SVG}title").text
+
+
+def _marks(r) -> list[tuple[int, float]]:
+    """(order, x) of the harmonic lines of the magnitude panel, in order."""
+    svg = ET.fromstring(response_svg(r, magnitude="units", both=False))
+    seen = {}
+    for line in svg.iter(f"{SVG}line"):
+        if line.get("class") in ("pb-base", "pb-harmonic"):
+            seen.setdefault(int(line.get("data-order")), float(line.get("x1")))
+    return sorted(seen.items())
+
+
+def test_harmonic_lines_thin_out_to_the_characteristic_orders():
+    circuit = read_circuit("frequency 50 Hz\nVs: voltage a -> 0 20 V\nR1: resistor a -> b 2\n"
+                           "L1: inductor b -> c 1 mH\nC1: capacitor c -> 0 0.4 uF\n")
+    # a range far above the fundamental (1 kHz to 50 kHz: orders 20 to 1000)
+    high = _marks(run_sweep(circuit, ["I(R1)"], start=1e3, stop=5e4, points=200))
+    orders = [h for h, _ in high]
+    # common practice, no source: above the low orders the ones that matter are the
+    # characteristic orders of six-pulse converters, h = 6k ± 1; power-quality tables
+    # end at the 50th (IEEE Std 519-2014 Table 1, from memory)
+    assert orders and all(h % 6 in (1, 5) for h in orders) and max(orders) <= 50
+    assert orders[0] == 23                       # the first 6k ± 1 order above 1 kHz
+    gaps = [b - a for (_, a), (_, b) in zip(high, high[1:])]
+    assert min(gaps) >= 10.0                     # never a fence of lines
+    # the usual range (the fundamental to 2.5 kHz): every low order, then 6k ± 1
+    low = [h for h, _ in _marks(run_sweep(circuit, ["I(R1)"], start=50, stop=2500, points=200))]
+    assert low[:13] == list(range(1, 14))
+    assert {17, 19, 23, 25}.issubset(low) and not {14, 15, 16, 18}.intersection(low)
+    # four decades (10 Hz to 100 kHz): the low orders crowd before the 13th; the 5th,
+    # 7th, 11th and 13th are still marked, each line 10 px or more from the last
+    wide = _marks(run_sweep(circuit, ["I(R1)"], start=10, stop=1e5, points=200))
+    assert {5, 7, 11, 13}.issubset(h for h, _ in wide)
+    assert min(b - a for (_, a), (_, b) in zip(wide, wide[1:])) >= 10.0

@@ -43,9 +43,34 @@ _LABEL_GAP = 16.0
 #: Harmonic lines stop where they come closer than this (px), and after this order
 #: (the orders power-quality practice counts: IEC 61000-3-2 and IEEE 519 tables end
 #: at the 40th and 50th, from memory).
-_LINE_GAP = 5.0
+_LINE_GAP = 10.0
 MAX_HARMONIC = 50
+#: Every order up to this one is marked; above it only the characteristic orders of
+#: six-pulse converters, h = 6k ± 1 (the ones drives and rectifiers inject; common
+#: practice, no source), so a range far above the fundamental is not a fence of lines.
+EVERY_ORDER_UP_TO = 13
 _LEFT, _RIGHT, _BOTTOM = 78.0, 24.0, 42.0
+
+
+def marked_orders(base: float, f_lo: float, f_hi: float, x_of) -> list[tuple[int, float]]:
+    """(order, x) of the harmonic lines between ``f_lo`` and ``f_hi``: every order up to
+    ``EVERY_ORDER_UP_TO``, then the 6k ± 1 ones, up to ``MAX_HARMONIC``; none nearer
+    than ``_LINE_GAP`` px to the last one drawn. Where the orders crowd, the others give
+    way to the 6k ± 1 ones; where those crowd too, the lines stop."""
+    out: list[tuple[int, float]] = []
+    for h in range(1, min(int(f_hi // base), MAX_HARMONIC) + 1):
+        if h * base < f_lo * (1 - 1e-12):
+            continue
+        characteristic = h % 6 in (1, 5)
+        if h > EVERY_ORDER_UP_TO and not characteristic:
+            continue
+        x = float(x_of(h * base))
+        if out and x - out[-1][1] < _LINE_GAP:
+            if characteristic:
+                break                     # the orders that matter crowd from here on
+            continue
+        out.append((h, x))
+    return out
 
 
 def probe_style(k: int) -> tuple[str, str | None]:
@@ -301,15 +326,9 @@ def response_svg(result: dict, width: int = 760, height: int = 480, magnitude: s
     # The analysis frequency and its harmonics inside the range.
     base = result.get("frequency_hz")
     if base:
-        last_label, last_line = -1e9, -1e9
-        for h in range(1, min(int(f_hi // base), MAX_HARMONIC) + 1):
+        last_label = -1e9
+        for h, x in marked_orders(base, f_lo, f_hi, x_of):
             f = h * base
-            if f < f_lo * (1 - 1e-12):
-                continue
-            x = float(x_of(f))
-            if h > 1 and x - last_line < _LINE_GAP:
-                break                     # the orders crowd from here on: stop marking
-            last_line = x
             words = (f"analysis frequency {fmt.eng(base, 'Hz')}" if h == 1 else
                      f"harmonic {h}: {fmt.eng(f, 'Hz')}")
             for a, b in ((mag_top, mag_bot), (ph_top, ph_bot)):
