@@ -94,3 +94,59 @@ def test_server_scheduler_setting_gives_the_same_numbers(bench_samples):
         there = ThreadedApi(app).post("/api/tolerance", json=body).json()
     # common practice, no source: the server's scheduler setting changes where, not what
     assert there == here and there["runs"] == 2500
+
+
+def test_a_finished_study_is_encoded_once_in_its_worker_thread(bench_samples, monkeypatch):
+    # common practice, no source: blocking work (encoding a big answer) stays off the
+    # asyncio event loop (Python docs, "Developing with asyncio", "Running Blocking
+    # Code"), as for every other route (test_off_loop_encode.py); which thread encodes,
+    # and in what order, is recorded: nothing here is timed
+    import asyncio
+    import threading
+
+    import httpx
+
+    from phasorbench.jsonout import dumps as real_dumps
+    from phasorbench.web import jsonsafe
+    from phasorbench.web.tolerance_routes import ToleranceBody, tolerance_answer
+
+    from .conftest import run_async
+    from .test_off_loop_encode import SAFETY
+    events = []
+
+    def recording(data):
+        if isinstance(data, dict) and data.get("state") == "done":
+            events.append(("done encoded", threading.current_thread()))
+        return real_dumps(data)
+    monkeypatch.setattr(jsonsafe, "dumps", recording)
+    monkeypatch.setattr(jsonsafe, "dumps_in_pieces", recording)
+    app = make_app(bench_samples)
+    ask = {"netlist": DIVIDER, "probes": ["V(out)"], "runs": 500, "seed": 3}
+
+    async def scenario():
+        loop_thread = threading.current_thread()
+        async with httpx.AsyncClient(transport=httpx.ASGITransport(app=app),
+                                     base_url="http://127.0.0.1:8000") as client:
+            job = (await client.post("/api/tolerance/jobs", json=ask)).json()["job"]
+            future = app.state.tolerance_jobs[job]["future"]
+            await asyncio.wait_for(asyncio.wrap_future(future), SAFETY)
+            events.append(("finished", None))
+            r = await client.get(f"/api/tolerance/jobs/{job}")
+            events.append(("answered", None))
+            gone = await client.get(f"/api/tolerance/jobs/{job}")
+        return loop_thread, r, gone
+    loop_thread, r, gone = run_async(scenario())
+    assert [name for name, _ in events] == ["done encoded", "finished", "answered"]
+    thread = events[0][1]
+    assert thread is not loop_thread and thread.name.startswith("phasorbench-large")
+    assert r.status_code == 200 and gone.status_code == 404
+    # the bytes and headers the route sent before: jsonout.dumps of the same answer
+    # (the study is seeded, so it is the same answer), as application/json
+    body = ToleranceBody(**ask)
+    want = real_dumps({"state": "done", **tolerance_answer(
+        DIVIDER, body.ask(), app.state.settings)})
+    assert r.content == want
+    assert r.headers["content-type"] == "application/json"
+    assert r.headers["content-length"] == str(len(want))
+    # divider (formula): V(out) = 10 V · 1 kΩ / 2 kΩ = 5 V nominal
+    assert math.isclose(r.json()["probes"]["V(out)"]["nominal"]["mag"], 5.0, rel_tol=1e-12)

@@ -20,7 +20,7 @@ from ..errors import CircuitError, Diagnostic
 from ..model import VOLTAGE_KINDS
 from . import answers, api
 from .answers import _read
-from .jsonsafe import StrictJSONResponse
+from .jsonsafe import EncodedJSONResponse, StrictJSONResponse, encoded
 from .settings import Settings
 
 #: Largest (runs + worst-case corners) × unknowns of one request.
@@ -74,6 +74,14 @@ def tolerance_answer(text: str, ask: dict, settings: Settings, progress=None,
         from ..presentation.studies.tolerance import view
         result["display"] = {**view(result), "caution": TOLERANCE_NOTE}
     return result
+
+
+def _finished(text: str, ask: dict, settings: Settings, progress, cancel) -> bytes:
+    """A job's study and its finished answer ``{"state": "done", …}`` encoded, both in
+    the job's worker thread: the status poll sends these bytes as they are, so a big
+    answer is never encoded on the event loop (as ``api.run_job`` does for the rest)."""
+    return encoded({"state": "done",
+                    **tolerance_answer(text, ask, settings, progress, cancel)})
 
 
 def check_work(circuit, ask: dict) -> None:
@@ -133,7 +141,7 @@ async def start_job(body: ToleranceBody, request: Request):
     # a thread-safe future of the large lane's pool itself: the job outlives this
     # request (it is cancelled by DELETE, between chunks), bounded by MAX_JOBS
     job["future"] = state.jobs.large.pool.submit(functools.partial(
-        tolerance_answer, body.netlist, body.ask(), state.settings, progress,
+        _finished, body.netlist, body.ask(), state.settings, progress,
         job["cancel"].is_set))
     key = secrets.token_hex(8)
     jobs[key] = job
@@ -155,8 +163,8 @@ async def job_status(job_id: str, request: Request):
                                    "total": job["total"]})
     del jobs[job_id]
     exc = future.exception()
-    if exc is None:
-        return StrictJSONResponse({"state": "done", **future.result()})
+    if exc is None:                 # the answer's bytes, written when the study ended
+        return EncodedJSONResponse(future.result())
     if isinstance(exc, Cancelled):
         return StrictJSONResponse({"state": "cancelled"})
     if isinstance(exc, CircuitError):
