@@ -46,6 +46,8 @@ async function postJSON(path, body, signal) {
 let shownAs = null;
 export function showMagnitudesAs(kind) { shownAs = kind === "rms" || kind === "peak" ? kind : null; }
 const show = () => (shownAs ? {show: shownAs} : {});
+/** The switch's state as a request field ({show} or nothing): the table and sheet exports ask for it too. */
+export const shownField = show;
 
 export const postCheck = (netlist, signal) => postJSON("/api/check", {netlist}, signal);
 /** `names`: elements the page shows; the answer's display.present lists those the circuit has. */

@@ -3,7 +3,7 @@
 // The sheet is made on the server (POST /api/sheet) from the same data as the page,
 // so the file saved here is the one `phasorbench sheet FILE` writes.
 
-import {noAnswer, withTimeout} from "./api.js";
+import {noAnswer, shownField, withTimeout} from "./api.js";
 
 const FALLBACK_NAME = "circuit-sheet.html";
 
@@ -50,7 +50,7 @@ async function errorsOf(response) {
  * errors, 0 when the server did not answer) for the page to show.
  */
 export async function exportSheet(netlist, elements, tools = {}) {
-  const body = {netlist};
+  const body = {netlist, ...shownField()};   // magnitudes as the RMS / peak switch reads them
   if (Array.isArray(elements) && elements.length) body.elements = elements;
   if (tools.correct) body.correct = tools.correct;
   if (tools.port) body.port = tools.port;

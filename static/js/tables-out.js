@@ -2,8 +2,10 @@
 // tab-separated text (what a spreadsheet pastes into cells).
 //
 // The text is made on the server (POST /api/table, presentation/tables_out.py), the one
-// home of these rows, so the file is the one `phasorbench solve FILE --table T` prints.
+// home of these rows, so the file is the one `phasorbench solve FILE --table T` prints
+// (with `--show` as the page's RMS / peak switch stands).
 
+import {shownField} from "./api.js";
 import {saveBlob} from "./sheet-export.js";
 
 async function fetchTable(netlist, table, format) {
@@ -12,7 +14,8 @@ async function fetchTable(netlist, table, format) {
     response = await fetch("/api/table", {
       method: "POST",
       headers: {"Content-Type": "application/json"},
-      body: JSON.stringify({netlist, table, format}),
+      // the RMS / peak switch's state: the file says what the screen shows
+      body: JSON.stringify({netlist, table, format, ...shownField()}),
     });
   } catch {
     return {ok: false, message: "the server did not answer (is `phasorbench serve` still running?)"};

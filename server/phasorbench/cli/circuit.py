@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from .common import EXIT_OK, dump_json, load_source, print_diagnostics, print_warnings, write_json
+from .common import EXIT_OK, add_show_option, dump_json, load_source, print_diagnostics, print_warnings, write_json
 
 __all__ = ["add_circuit_commands", "command_solve", "command_check"]
 
@@ -19,6 +19,7 @@ def add_circuit_commands(commands) -> None:
                      help="print one table as CSV for a spreadsheet (units in the headings)")
     solve.add_argument("--tsv", action="store_true",
                        help="with --table: tab-separated instead of comma-separated")
+    add_show_option(solve)
     solve.set_defaults(run=command_solve)
 
     check = commands.add_parser("check", help="validate a circuit without solving it")
@@ -30,9 +31,10 @@ def add_circuit_commands(commands) -> None:
 
 
 def command_solve(args) -> int:
+    from ..presentation.amplitudes import shown_as
     from ..workflow import solve_text
     text, name = load_source(args)
-    result = solve_text(text, name)
+    result = shown_as(solve_text(text, name), args.show)
     if args.json:
         write_json(result)
     elif args.table:

@@ -9,10 +9,20 @@ import sys
 
 from ..errors import Diagnostic, format_diagnostic, source_lines
 
-__all__ = ["print_study_diagnostics", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
+__all__ = ["add_show_option", "print_study_diagnostics", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
            "load_source", "print_diagnostics", "print_warnings", "dump_json", "write_json"]
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
+
+
+def add_show_option(parser) -> None:
+    """``--show rms|peak``: the page's RMS / peak switch (the API's ``show``) for the
+    commands that print or write a solved circuit's magnitudes (``solve``, ``sheet``)."""
+    from ..presentation.amplitudes import SHOWN
+    parser.add_argument("--show", choices=SHOWN, metavar="rms|peak",
+                        help="read voltage and current magnitudes as rms or peak values "
+                             "(default: as the circuit's amplitudes line says; powers and "
+                             "angles are the same either way)")
 
 
 class InputFileError(Exception):

@@ -12,7 +12,7 @@ import argparse
 import sys
 
 from ..errors import CircuitError, Diagnostic
-from .common import EXIT_INPUT, EXIT_OK, load_source, print_study_diagnostics, print_warnings
+from .common import EXIT_INPUT, EXIT_OK, add_show_option, load_source, print_study_diagnostics, print_warnings
 from .output import frequency_argument, voltage_argument, write_output
 from .tools import add_correction_options
 
@@ -36,6 +36,7 @@ def add_sheet_command(commands) -> None:
     sheet.add_argument("--element", action="append", metavar="NAME", dest="elements",
                        help="draw this element's waveform and phasors (repeat for more); "
                             "default: each source and reactive element, capped")
+    add_show_option(sheet)
     sheet.add_argument("--correct", nargs=2, metavar=("SOURCE", "PF"),
                        help="add a power-factor correction: the shunt capacitor that "
                             "brings SOURCE to PF (lagging unless --leading), across the "
@@ -88,9 +89,10 @@ def command_sheet(args) -> int:
     from ..sheet.powertools import run_power_tools
     from ..sheet.formula import formula_section
     from ..sheet.tolerance import tolerance_section
+    from ..presentation.amplitudes import shown_as
     from ..workflow import solve_text
     text, name = load_source(args)
-    result = solve_text(text, name)
+    result = shown_as(solve_text(text, name), args.show)
     correct = None
     placed = (args.correct_at is not None or args.correct_across or args.bank or
               args.neutral or args.leading or args.rated_voltage is not None or

@@ -25,6 +25,10 @@ def header_lines(result: dict) -> list[str]:
     balance = result["balance"]
     convention = ("RMS phasors, S = V·I*" if result["amplitudes"] == "rms"
                   else "peak phasors, S = ½·V·I*")
+    own = result.get("amplitudes_input")
+    if own and own != result["amplitudes"]:
+        # --show read the answer the other way (the page's words: "shown as ...; input in ...")
+        convention = f"shown as {convention}; input in {'RMS' if own == 'rms' else 'peak'}"
     state = "ok" if balance.get("ok", True) else "FAILED"
     lines = []
     if result.get("title"):

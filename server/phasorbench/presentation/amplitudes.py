@@ -12,13 +12,23 @@ from __future__ import annotations
 
 import math
 
-__all__ = ["SHOWN", "shown_as"]
+__all__ = ["SHOWN", "shown_as", "shown_word"]
 
 #: What the switch offers.
 SHOWN = ("rms", "peak")
 
 #: Keys whose phasors are not voltages or currents (ratios of them): never scaled.
 _UNSCALED = ("impedance", "admittance")
+
+
+def shown_word(result: dict) -> str:
+    """The page's word for the convention ``result``'s magnitudes are in: "RMS" or "peak"
+    (table headings, the CSV's and the sheet's).
+
+    >>> shown_word({"amplitudes": "peak"}), shown_word({})
+    ('peak', 'RMS')
+    """
+    return "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
 
 
 def _scaled(value, k: float):

@@ -13,6 +13,7 @@ import math
 
 from .formatting import (ELEMENT_COLUMNS, LIMITED, MISSING, NODE_COLUMNS, ROUND_OFF, SHOWN_DIGITS,
                           element_rows, eng, phasor, plain, power_factor_of, shown_digits)
+from .amplitudes import shown_word
 from .rows import first_rows
 
 #: Used only when a result carries no balance verdict of its own (results.py gives one):
@@ -145,7 +146,7 @@ def _headed(key: str, heading: str, result: dict) -> str:
     """A table heading with the convention of its magnitudes: ``|V| RMS ∠``."""
     if key not in _MAGNITUDE_COLUMNS:
         return heading
-    word = "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
+    word = shown_word(result)
     symbol = _MAGNITUDE_COLUMNS[key][0]
     return heading.replace(symbol, f"{symbol} {word}", 1)
 

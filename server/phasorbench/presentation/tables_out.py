@@ -13,18 +13,22 @@ import csv
 import io
 import math
 
+from .amplitudes import shown_word
+
 
 __all__ = ["TABLES", "table_rows", "table_text"]
 
 #: The tables, by the name the command line and the API take.
 TABLES = ("nodes", "branches", "three-phase")
 
-_NODE_HEADINGS = ["Node", "|V| (V)", "∠V (°)", "Re V (V)", "Im V (V)"]
-_BRANCH_HEADINGS = ["Element", "Kind", "From", "To", "|V| (V)", "∠V (°)", "|I| (A)",
+#: ``{m}`` in a heading: the convention of its magnitudes, "RMS" or "peak" as the page's
+#: table headings say it (``amplitudes.shown_word``); powers and angles have none.
+_NODE_HEADINGS = ["Node", "|V| {m} (V)", "∠V (°)", "Re V {m} (V)", "Im V {m} (V)"]
+_BRANCH_HEADINGS = ["Element", "Kind", "From", "To", "|V| {m} (V)", "∠V (°)", "|I| {m} (A)",
                     "∠I (°)", "R (Ω)", "X (Ω)", "P (W)", "Q (var)", "|S| (VA)", "PF",
                     "PF sense", "Convention"]
 _GROUP_HEADINGS = ["Block", "Kind", "Connection", "Lines", "P (W)", "Q (var)", "|S| (VA)",
-                   "PF", "PF sense", "V unbalance V2/V1 (%)", "|I_N| (A)", "Convention"]
+                   "PF", "PF sense", "V unbalance V2/V1 (%)", "|I_N| {m} (A)", "Convention"]
 #: Significant digits written for a fully trusted value: what a double holds.
 _FULL = 15
 
@@ -54,15 +58,23 @@ def _digits(trusted) -> int:
     return max(1, int(trusted))
 
 
+def _headings(headings: list[str], result: dict) -> list[str]:
+    word = shown_word(result)
+    return [h.replace("{m}", word) for h in headings]
+
+
 def table_rows(result: dict, table: str) -> tuple[list[str], list[list]]:
     """(headings, rows) of one of `TABLES` for a contract dict; rows hold str and float.
 
-    An unknown table raises ``ValueError``.
+    The voltage and current magnitudes are in ``result``'s ``amplitudes`` convention
+    (``amplitudes.shown_as`` reads them the other way), and their headings say which:
+    ``|V| RMS (V)``, ``|I| peak (A)``. An unknown table raises ``ValueError``.
     """
     if table == "nodes":
         trusted = result.get("node_digits") or {}
-        return _NODE_HEADINGS, [[name, *_phasor(ph, _digits(trusted.get(name)), True)]
-                                for name, ph in result.get("nodes", {}).items()]
+        return _headings(_NODE_HEADINGS, result), [
+            [name, *_phasor(ph, _digits(trusted.get(name)), True)]
+            for name, ph in result.get("nodes", {}).items()]
     if table == "branches":
         rows = []
         for name, el in result.get("elements", {}).items():
@@ -77,7 +89,7 @@ def table_rows(result: dict, table: str) -> tuple[list[str], list[list]]:
                          _number(seen.get("p_w"), d), _number(seen.get("q_var"), d),
                          _number(el.get("s_va"), d), _number(el.get("pf"), min(d, 6)),
                          el.get("pf_sense", ""), "delivered" if supply else "passive"])
-        return _BRANCH_HEADINGS, rows
+        return _headings(_BRANCH_HEADINGS, result), rows
     if table == "three-phase":
         rows = []
         for name, g in (result.get("groups") or {}).items():
@@ -92,7 +104,7 @@ def table_rows(result: dict, table: str) -> tuple[list[str], list[list]]:
                          _number(100 * vuf) if vuf is not None else "",
                          _number(neutral["mag"]) if isinstance(neutral, dict) else "",
                          "delivered" if supply else "passive"])
-        return _GROUP_HEADINGS, rows
+        return _headings(_GROUP_HEADINGS, result), rows
     raise ValueError(f"no table named {table!r}: the tables are {', '.join(TABLES)}")
 
 

@@ -16,6 +16,7 @@ from datetime import datetime, timezone
 
 from .. import __version__
 from ..presentation import formatting as fmt
+from ..presentation.amplitudes import shown_word
 from ..presentation.cautions import CAUTIONS, SCOPE_NOTE
 from ..presentation.drawing.phasors import phasor_diagram_svg
 from ..presentation.drawing.waveforms import waveform_svg
@@ -77,6 +78,26 @@ def _inline(svg: str) -> str:
     return svg.replace(_SVG_NAMESPACE, "", 1)
 
 
+def _input_word(result: dict) -> str | None:
+    """The circuit's own convention, "RMS" or "peak", when the sheet shows the other
+    (``amplitudes.shown_as``: the page's RMS / peak switch); else None."""
+    own = result.get("amplitudes_input")
+    if not own or own == result.get("amplitudes", "rms"):
+        return None
+    return shown_word({"amplitudes": own})
+
+
+def _shown_note(result: dict) -> str:
+    own = _input_word(result)
+    if own is None:
+        return ""
+    return (f"Shown as {shown_word(result)} values; the circuit's amplitudes line gives its "
+            f"source values as {own} (the input above, verbatim). Voltages and currents of "
+            f"the tables, diagrams and checks are read as {shown_word(result)}; powers, "
+            "angles and impedances are the same either way. The power tools' and studies' "
+            f"sections, when present, keep the circuit's own {own} values. ")
+
+
 def _assumptions(result: dict) -> list[dict]:
     f = float(result["frequency_hz"])
     rms = result.get("amplitudes", "rms") == "rms"
@@ -84,11 +105,11 @@ def _assumptions(result: dict) -> list[dict]:
         ("Analysis frequency",
          f"{fmt.eng(f, 'Hz')} (ω = 2πf = {fmt.eng(2 * math.pi * f, 'rad/s')}); sinusoidal "
          "steady state, every source at this one frequency."),
-        ("Amplitudes",
+        ("Amplitudes", _shown_note(result) + (
          "Phasor magnitudes are RMS values; complex power S = V·I*; an instantaneous value "
          "is x(t) = √2·|X|·cos(ωt + θ)." if rms else
          "Phasor magnitudes are peak values; complex power S = ½·V·I*; an instantaneous "
-         "value is x(t) = |X|·cos(ωt + θ)."),
+         "value is x(t) = |X|·cos(ωt + θ).")),
         ("Angles",
          "In degrees, in (−180°, 180°], counter-clockwise from the positive real axis; the "
          "phase reference is a cosine at t = 0 (a source with phase 0°)."),
@@ -264,7 +285,8 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
                    "nodes": len(result.get("nodes", {})),
                    "groups": len(result.get("groups") or {})},
         "frequency": fmt.eng(result["frequency_hz"], "Hz"),
-        "amplitudes": "RMS" if result.get("amplitudes", "rms") == "rms" else "peak",
+        "amplitudes": shown_word(result),
+        "amplitudes_input": _input_word(result),
         "assumptions": _assumptions(result),
         "node_columns": fmt.NODE_COLUMNS,
         "nodes": fmt.node_rows(result),

@@ -101,9 +101,11 @@ def rows_answer(text: str, window: dict, settings: Settings) -> dict:
                         expanded=window.get("expanded") or (), block_rows=group_rows)
 
 
-def table_answer(text: str, table: str, separator: str, settings: Settings) -> str:
-    """One of the tables as CSV or tab-separated text (``tables_out.table_text``)."""
-    return table_text(_solved(text, settings), table, separator)
+def table_answer(text: str, table: str, separator: str, show: str | None,
+                 settings: Settings) -> str:
+    """One of the tables as CSV or tab-separated text (``tables_out.table_text``), its
+    magnitudes as ``show`` says (None: the circuit's own convention)."""
+    return table_text(_shown(text, settings, show), table, separator)
 
 
 def _picked(result: dict, names: list[str], settings: Settings) -> list[str]:

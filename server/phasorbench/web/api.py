@@ -388,12 +388,15 @@ class TableBody(CircuitBody):
         description="which table: nodes, branches or three-phase")
     format: Literal["csv", "tsv"] = Field("csv", description="csv (a file) or tsv (for "
                                           "pasting into a spreadsheet)")
+    show: Literal["rms", "peak"] | None = SHOW_FIELD
 
 
 async def table(body: TableBody, request: Request):
     """One table of the solved circuit for a spreadsheet: units in the headings, numbers
     as numbers (never more digits than the solve trusts), a source's current and power
-    the delivered ones; ``text/csv`` as an attachment, or ``text/tab-separated-values``."""
+    the delivered ones, the magnitudes RMS or peak as ``show`` says (the headings name
+    which: ``|V| RMS (V)``); ``text/csv`` as an attachment, or
+    ``text/tab-separated-values``."""
     def respond(text: bytes) -> SlicedResponse:
         if body.format == "tsv":
             return SlicedResponse(text,
@@ -404,7 +407,7 @@ async def table(body: TableBody, request: Request):
             "Content-Disposition": f'attachment; filename="{body.table}.csv"',
             "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store"})
     return await run_job(request, answers.table_answer, body.netlist, body.table,
-                         "\t" if body.format == "tsv" else ",", respond=respond)
+                         "\t" if body.format == "tsv" else ",", body.show, respond=respond)
 
 
 async def samples(request: Request):

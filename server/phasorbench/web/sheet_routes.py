@@ -81,11 +81,13 @@ class SheetBody(CircuitBody):
     sweep: SweepAsk | None = Field(
         None, description="add the frequency response, as the page's frequency-response tab "
                           "asks for it")
+    show: Literal["rms", "peak"] | None = api.SHOW_FIELD
 
 
 def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
     """``(html, download name)`` of the sheet ``body`` asks for; raises ``CircuitError``."""
     from .. import workflow
+    from ..presentation.amplitudes import shown_as
     from ..sheet import render_context, sheet_context
     from ..sheet.powertools import run_power_tools
     from ..sheet.formula import formula_section
@@ -95,7 +97,7 @@ def sheet_answer(body: SheetBody, settings: Settings) -> tuple[str, str]:
 
     text, name = body.netlist, answers.PAGE_FILENAME
     check_size(text, settings.max_elements)
-    result = workflow.solve_text(text, name)
+    result = shown_as(workflow.solve_text(text, name), body.show)
     correct = body.correct.model_dump() if body.correct else None
     port = (body.port.a, body.port.b) if body.port else None
     tools = run_power_tools(text, name, correct=correct, port=port)
