@@ -3,6 +3,9 @@
 from __future__ import annotations
 
 import logging
+import re
+
+import pytest
 
 from phasorbench.cli import main
 from phasorbench.web import sheet_routes
@@ -180,3 +183,66 @@ def test_sweep_section_bad_input_is_422_in_the_error_shape(api):
                                                                "points": 100000}})
     # common practice, no source: the sweep's work bound holds for the sheet too
     assert r.status_code == 422 and "points × unknowns" in r.json()["errors"][0]["message"]
+
+
+# Invented: a 120 V, 60 Hz supply through 30 Ω into a 40 Ω reactance. Ohm's law (any
+# circuits textbook): |I| = 120/50 = 2.4 A RMS, V(b) = 96 V RMS, P = 172.8 W,
+# Q = 230.4 var.
+KILN = ("title Kiln blower\nfrequency 60 Hz\nV1: voltage a -> 0 120 V\n"
+        "R1: resistor a -> b 30 ohm\nZ1: impedance b -> 0 j40 ohm\n")
+_PREFIX = {"m": 1e-3, "k": 1e3, "": 1.0}
+
+
+def _cells(html: str, name: str) -> dict:
+    """The branch-table cells of element ``name``, by column key, as text."""
+    row = re.search(rf'<tr><th scope="row"><a href="#L\d+">{name}</a></th>(.*?)</tr>', html).group(1)
+    return {key: re.sub(r"<[^>]+>", " ", text).split("  ")[0].strip()
+            for key, text in re.findall(r'<td class="c-(\w+)">(.*?)</td>', row)}
+
+
+def _magnitude(cell: str) -> float:
+    """``"3.394 A ∠−53.13°"`` → 3.394 (engineering prefixes m and k)."""
+    number, prefix = re.match(r"([0-9.]+)\s([mk]?)[AV]", cell).groups()   # a no-break space
+    return float(number) * _PREFIX[prefix]
+
+
+def test_show_peak_sheet_reads_magnitudes_as_peak_and_says_so(api):
+    rms = api.post("/api/sheet", json={"netlist": KILN})
+    peak = api.post("/api/sheet", json={"netlist": KILN, "show": "peak"})
+    assert rms.status_code == peak.status_code == 200
+    # Alexander & Sadiku, Fundamentals of Electric Circuits, ch. 11, effective or RMS
+    # value (chapter from memory): a sinusoid's peak is √2 × its RMS value; the sheet
+    # writes 4 significant digits, so the cells agree to their last digit
+    for name, v_rms in (("V1", 120.0), ("R1", 72.0), ("Z1", 96.0)):
+        a, b = _cells(rms.text, name), _cells(peak.text, name)
+        assert _magnitude(b["voltage"]) == pytest.approx(v_rms * 2 ** 0.5, rel=5e-4)
+        assert _magnitude(b["current"]) == pytest.approx(2.4 * 2 ** 0.5, rel=5e-4)
+        assert _magnitude(a["current"]) == pytest.approx(2.4, rel=5e-4)     # Ohm's law
+        # P, Q, |S|, PF, Z and the angles are the same either way (S = V·I* for RMS
+        # phasors, ½·V·I* for peak ones: Alexander & Sadiku, ch. 11, complex power)
+        for key in ("p", "q", "s", "pf", "impedance_rect", "impedance_polar"):
+            assert a[key] == b[key], (name, key)
+        assert a["current"].split("∠")[1] == b["current"].split("∠")[1]
+    text = visible_text(peak.text)
+    # the sheet says what it shows and what the input's convention is (the page's words)
+    assert "shown as peak phasors; input in RMS" in text
+    assert "Shown as peak values; the circuit's amplitudes line gives its source values as RMS" in text
+    assert "magnitudes peak (input in RMS)" in text
+    assert "magnitudes RMS." in visible_text(rms.text) and "input in" not in visible_text(rms.text)
+    # the input is listed as it was written, and the waveforms (instantaneous values,
+    # x(t) = √2·|X|·cos(ωt + θ) for RMS phasors, |X|·cos for peak ones) are the same
+    assert element_text(peak.text, "pre", "source") == KILN
+    captions = re.findall(r"<figcaption>(.*?)</figcaption>", rms.text, re.S)
+    assert any("peaks v = " in c for c in captions)
+    assert captions == re.findall(r"<figcaption>(.*?)</figcaption>", peak.text, re.S)
+
+
+def test_show_of_the_circuits_own_convention_changes_nothing(api):
+    # common practice, no source: asking for the convention the circuit already has is
+    # the sheet without the field
+    plain = api.post("/api/sheet", json={"netlist": KILN})
+    same = api.post("/api/sheet", json={"netlist": KILN, "show": "rms"})
+    assert STAMP.sub("", plain.text) == STAMP.sub("", same.text)
+    bad = api.post("/api/sheet", json={"netlist": KILN, "show": "mean"})
+    # results-contract.md: 422 with {"errors": [...]} for a body the route does not take
+    assert bad.status_code == 422 and bad.json()["errors"] and "Traceback" not in bad.text

@@ -28,14 +28,14 @@ def test_branch_csv_downloads_and_copy_fills_the_clipboard(new_page, live_server
     rows = list(csv.reader(io.StringIO(target.read_text(encoding="utf-8"), newline="")))
     r1 = dict(zip(rows[0], next(r for r in rows if r[0] == "R1")))
     # R = Xc on 230 V (check-values C1): I = 230 / (√2 · 318.31 Ω)
-    assert float(r1["|I| (A)"]) == pytest.approx(BENCH_I_MAG, rel=1e-6)
+    assert float(r1["|I| RMS (A)"]) == pytest.approx(BENCH_I_MAG, rel=1e-6)
 
     page.click("button[data-table-out='copy'][data-table='nodes']")
     # a selector, not a polled script: the page's CSP forbids eval
     page.wait_for_selector("#result-banner:has-text('Copied')", timeout=TIMEOUT_MS)
     pasted = page.evaluate("navigator.clipboard.readText()")
     cells = list(csv.reader(io.StringIO(pasted, newline=""), delimiter="\t"))
-    assert cells[0][:2] == ["Node", "|V| (V)"]
+    assert cells[0][:2] == ["Node", "|V| RMS (V)"]
     assert {r[0] for r in cells[1:]} >= {"0", "a", "b"}
     # no three-phase block in this circuit: its buttons stay hidden
     assert page.is_hidden("#blocks-csv")

@@ -287,6 +287,9 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
         "frequency": fmt.eng(result["frequency_hz"], "Hz"),
         "amplitudes": shown_word(result),
         "amplitudes_input": _input_word(result),
+        # the tables' notes: "RMS", or "peak (input in RMS)" as the page's switch reads it
+        "magnitudes": shown_word(result) + (f" (input in {_input_word(result)})"
+                                            if _input_word(result) else ""),
         "assumptions": _assumptions(result),
         "node_columns": fmt.NODE_COLUMNS,
         "nodes": fmt.node_rows(result),
