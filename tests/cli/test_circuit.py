@@ -98,6 +98,50 @@ def test_peak_circuits_say_so_in_the_header(capsys, circuit_file):
     assert "peak" in out.splitlines()[1] and "½" in out.splitlines()[1]   # S = ½·V·I*
 
 
+# Invented: 120 V, 60 Hz through 30 Ω into a 40 Ω reactance; Ohm's law (any circuits
+# textbook): |I| = 2.4 A RMS, V(b) = 96 V RMS, P = 172.8 W, Q = 230.4 var.
+KILN = ("title Kiln blower\nfrequency 60 Hz\nV1: voltage a -> 0 120 V\n"
+        "R1: resistor a -> b 30 ohm\nZ1: impedance b -> 0 j40 ohm\n")
+
+
+def _csv(out):
+    import csv
+    import io
+    rows = list(csv.reader(io.StringIO(out, newline="")))
+    return {r[0]: dict(zip(rows[0], r)) for r in rows[1:]}
+
+
+def test_show_reads_the_table_json_and_terminal_as_peak(capsys, circuit_file):
+    path = circuit_file(KILN)
+    status, out, _ = run_main(capsys, "solve", path, "--table", "branches", "--show", "peak")
+    assert status == 0
+    rms, peak = _csv(run_main(capsys, "solve", path, "--table", "branches")[1]), _csv(out)
+    # Alexander & Sadiku, Fundamentals of Electric Circuits, ch. 11, effective or RMS
+    # value (chapter from memory): a sinusoid's peak is √2 × its RMS value
+    assert float(peak["R1"]["|I| peak (A)"]) == pytest.approx(2.4 * 2 ** 0.5, rel=1e-12)
+    assert float(peak["Z1"]["|V| peak (V)"]) == pytest.approx(96 * 2 ** 0.5, rel=1e-12)
+    assert float(rms["R1"]["|I| RMS (A)"]) == pytest.approx(2.4, rel=1e-12)      # Ohm's law
+    # powers and angles are the same either way (S = V·I* for RMS, ½·V·I* for peak
+    # phasors: Alexander & Sadiku, ch. 11, complex power)
+    for key in ("P (W)", "Q (var)", "|S| (VA)", "∠I (°)"):
+        assert peak["R1"][key] == rms["R1"][key]
+    status, out, _ = run_main(capsys, "solve", path, "--json", "--show", "peak")
+    contract = json.loads(out)
+    # the API's shown answer: amplitudes as shown, the input's convention kept
+    assert (contract["amplitudes"], contract["amplitudes_input"]) == ("peak", "rms")
+    assert contract["elements"]["R1"]["p_w"] == pytest.approx(172.8, rel=1e-12)   # I²R
+    status, out, _ = run_main(capsys, "solve", path, "--show", "peak")
+    assert "shown as peak phasors" in out.splitlines()[1] and "input in RMS" in out.splitlines()[1]
+    assert "169.7 V ∠0.00°" in out                  # 120·√2 (Alexander & Sadiku, above)
+
+
+def test_show_takes_rms_or_peak_only(capsys, circuit_file):
+    # common practice, no source: argparse refuses a choice it does not offer, exit 2
+    with pytest.raises(SystemExit) as done:
+        cli.main(["solve", circuit_file(KILN), "--show", "average"])
+    assert done.value.code == 2 and "rms" in capsys.readouterr().err
+
+
 def test_json_output_is_the_contract_without_nan(capsys, circuit_file):
     status, out, err = run_main(capsys, "solve", circuit_file(GOOD), "--json")
     assert status == 0 and err == ""

@@ -315,3 +315,22 @@ def test_sweep_bad_input_exits_2_with_a_caret(tmp_path, capsys):
     status, _, err = run(["sheet", str(path), "--points", "10", "-o", str(out)], capsys)
     # common practice, no source: a sweep setting without a probe is refused, not ignored
     assert status == 2 and "give --sweep PROBE too" in err
+
+
+def test_show_peak_sheet_is_the_apis(tmp_path, capsys):
+    # the API's sheet with "show": "peak" (tests/sheet/test_sheet_api.py checks its
+    # numbers: peak = √2 × RMS, Alexander & Sadiku, Fundamentals of Electric Circuits,
+    # ch. 11, chapter from memory); the command line writes the same file
+    from tests.sheet.test_sheet_api import KILN
+    from tests.web.conftest import Api
+    from tests.sheet.conftest import sheet_app
+    path = tmp_path / "kiln.circuit"
+    path.write_text(KILN, encoding="utf-8")
+    out = tmp_path / "kiln.html"
+    status, _, _ = run(["sheet", str(path), "-o", str(out), "--show", "peak"], capsys)
+    assert status == 0
+    written = out.read_text(encoding="utf-8")
+    assert "shown as peak phasors; input in RMS" in written
+    assert "169.7\u00a0V ∠0.00°" in written           # 120 V RMS × √2 (above)
+    served = Api(sheet_app()).post("/api/sheet", json={"netlist": KILN, "show": "peak"})
+    assert STAMP.sub("", served.text) == STAMP.sub("", written)
