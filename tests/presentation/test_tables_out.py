@@ -106,7 +106,8 @@ def test_headings_say_the_convention_and_peak_is_root_two_times_rms():
     for name in ("V1", "R1", "Z1"):
         # powers and angles are the same physical quantities either way (S = V·I* with
         # RMS phasors, ½·V·I* with peak ones: any circuits textbook's AC power chapter)
-        for key in ("P (W)", "Q (var)", "|S| (VA)", "PF", "∠V (°)", "∠I (°)", "R (Ω)", "X (Ω)"):
+        for key in ("P (W)", "Q (var)", "|S| (VA)", "PF", "∠V (°)", "∠I (°)", "R (Ω)",
+                    "X (Ω)"):
             assert peak[name][key] == rms[name][key], (name, key)
     assert rms["V1"]["|S| (VA)"] == pytest.approx(288, rel=1e-12)       # 120 V × 2.4 A
     node_heads, _ = table_rows(shown_as(result, "peak"), "nodes")

@@ -195,7 +195,8 @@ _PREFIX = {"m": 1e-3, "k": 1e3, "": 1.0}
 
 def _cells(html: str, name: str) -> dict:
     """The branch-table cells of element ``name``, by column key, as text."""
-    row = re.search(rf'<tr><th scope="row"><a href="#L\d+">{name}</a></th>(.*?)</tr>', html).group(1)
+    row = re.search(rf'<tr><th scope="row"><a href="#L\d+">{name}</a></th>(.*?)</tr>',
+                    html).group(1)
     return {key: re.sub(r"<[^>]+>", " ", text).split("  ")[0].strip()
             for key, text in re.findall(r'<td class="c-(\w+)">(.*?)</td>', row)}
 
@@ -226,7 +227,8 @@ def test_show_peak_sheet_reads_magnitudes_as_peak_and_says_so(api):
     text = visible_text(peak.text)
     # the sheet says what it shows and what the input's convention is (the page's words)
     assert "shown as peak phasors; input in RMS" in text
-    assert "Shown as peak values; the circuit's amplitudes line gives its source values as RMS" in text
+    assert ("Shown as peak values; the circuit's amplitudes line gives its source values "
+            "as RMS") in text
     assert "magnitudes peak (input in RMS)" in text
     assert "magnitudes RMS." in visible_text(rms.text) and "input in" not in visible_text(rms.text)
     # the input is listed as it was written, and the waveforms (instantaneous values,

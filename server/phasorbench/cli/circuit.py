@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import sys
 
-from .common import EXIT_OK, add_show_option, dump_json, load_source, print_diagnostics, print_warnings, write_json
+from .common import (EXIT_OK, add_show_option, dump_json, load_source, print_diagnostics,
+                     print_warnings, write_json)
 
 __all__ = ["add_circuit_commands", "command_solve", "command_check"]
 

@@ -9,7 +9,8 @@ import sys
 
 from ..errors import Diagnostic, format_diagnostic, source_lines
 
-__all__ = ["add_show_option", "print_study_diagnostics", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
+__all__ = ["add_show_option",
+           "print_study_diagnostics", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "InputFileError", "read_source",
            "load_source", "print_diagnostics", "print_warnings", "dump_json", "write_json"]
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2

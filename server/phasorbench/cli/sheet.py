@@ -12,7 +12,8 @@ import argparse
 import sys
 
 from ..errors import CircuitError, Diagnostic
-from .common import EXIT_INPUT, EXIT_OK, add_show_option, load_source, print_study_diagnostics, print_warnings
+from .common import (EXIT_INPUT, EXIT_OK, add_show_option, load_source, print_study_diagnostics,
+                     print_warnings)
 from .output import frequency_argument, voltage_argument, write_output
 from .tools import add_correction_options
 

@@ -6,6 +6,7 @@ exactly the strings of the page and the sheet.
 
 from __future__ import annotations
 
+from ..presentation.amplitudes import shown_word
 from ..presentation.display import group_detail, group_rows
 from ..presentation.formatting import ELEMENT_COLUMNS, NODE_COLUMNS, eng, element_rows, node_rows
 
@@ -28,7 +29,7 @@ def header_lines(result: dict) -> list[str]:
     own = result.get("amplitudes_input")
     if own and own != result["amplitudes"]:
         # --show read the answer the other way (the page's words: "shown as ...; input in ...")
-        convention = f"shown as {convention}; input in {'RMS' if own == 'rms' else 'peak'}"
+        convention = f"shown as {convention}; input in {shown_word({'amplitudes': own})}"
     state = "ok" if balance.get("ok", True) else "FAILED"
     lines = []
     if result.get("title"):

@@ -273,6 +273,7 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
     title = result.get("title")
     # The circuit's own warnings, which a tool's result repeats: listed once, above.
     known = [w["message"] for w in result.get("warnings", [])]
+    own = _input_word(result)
     return {
         "title": title,
         "heading": title or "Untitled circuit",
@@ -286,10 +287,9 @@ def sheet_context(text: str, filename: str = "<circuit>", *, result: dict | None
                    "groups": len(result.get("groups") or {})},
         "frequency": fmt.eng(result["frequency_hz"], "Hz"),
         "amplitudes": shown_word(result),
-        "amplitudes_input": _input_word(result),
+        "amplitudes_input": own,
         # the tables' notes: "RMS", or "peak (input in RMS)" as the page's switch reads it
-        "magnitudes": shown_word(result) + (f" (input in {_input_word(result)})"
-                                            if _input_word(result) else ""),
+        "magnitudes": shown_word(result) + (f" (input in {own})" if own else ""),
         "assumptions": _assumptions(result),
         "node_columns": fmt.NODE_COLUMNS,
         "nodes": fmt.node_rows(result),
