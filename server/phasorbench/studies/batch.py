@@ -28,6 +28,11 @@ from .probes import Current, Impedance, Probe, Voltage
 _LAWS = ("inv", "jw", "invjw", "id")
 
 
+def _stamp_laws(w: float):
+    """g(v) of each law of ``_LAWS`` at ω = ``w``, None for "id" (g(v) = v)."""
+    return (lambda x: 1 / x, lambda x: (1j * w) * x, lambda x: 1 / ((1j * w) * x), None)
+
+
 @dataclass
 class Values:
     """Probe values of a batch of runs; ``bad`` marks singular runs or zero denominators."""
@@ -107,6 +112,10 @@ class Batch:
                 entry(col, col, -1.0, j)
             laws.append(law)
         self.laws = np.array([_LAWS.index(law) for law in laws], dtype=np.int8)
+        #: the entities of each law (indices, in ``_LAWS`` order): g(v) and g'(v) are
+        #: computed law by law, over runs × entities and entities × runs alike
+        self._law_index = [np.flatnonzero(self.laws == code)
+                           for code in range(len(_LAWS))]
         self.rows, self.cols = np.array(rows, dtype=np.int64), np.array(cols, dtype=np.int64)
         self.signs, self.owner = np.array(signs), np.array(owner, dtype=np.int64)
         self.rhs_rows = np.array(rhs_rows, dtype=np.int64)
@@ -115,24 +124,20 @@ class Batch:
 
     def _g(self, v: np.ndarray) -> np.ndarray:
         """The stamped quantity g(v) of every entity (columns) for every run (rows)."""
-        w = self.omega
         out = np.empty_like(v)
-        if not hasattr(self, "_law_cols"):
-            self._law_cols = [np.flatnonzero(self.laws == code) for code in range(4)]
         with np.errstate(all="ignore"):
-            for cols, fn in zip(self._law_cols, (lambda x: 1 / x, lambda x: 1j * w * x,
-                                                 lambda x: 1 / (1j * w * x), lambda x: x)):
+            for cols, fn in zip(self._law_index, _stamp_laws(self.omega)):
                 if len(cols):
-                    out[:, cols] = fn(v[:, cols])
+                    out[:, cols] = v[:, cols] if fn is None else fn(v[:, cols])
         return out
 
     def _dg(self, v: np.ndarray) -> np.ndarray:
         """g'(v) per entity (a vector of entity values)."""
         w = self.omega
         out = np.empty_like(v)
-        for code, fn in enumerate((lambda x: -1 / x ** 2, lambda x: 1j * w + 0 * x,
-                                   lambda x: -1 / (1j * w * x ** 2), lambda x: 1 + 0 * x)):
-            cols = self.laws == code
+        laws = (lambda x: -1 / x ** 2, lambda x: 1j * w + 0 * x,
+                lambda x: -1 / (1j * w * x ** 2), lambda x: 1 + 0 * x)
+        for cols, fn in zip(self._law_index, laws):
             out[cols] = fn(v[cols])
         return out
 
@@ -197,10 +202,8 @@ class Batch:
         """g(v) as entity × run (rows: entities), the layout the moving entries are
         made from: each law's rows gathered whole."""
         vt = np.ascontiguousarray(v.T)
-        w = self.omega
         with np.errstate(all="ignore"):
-            for rows, fn in zip(self._law_rows, (lambda x: 1 / x, lambda x: (1j * w) * x,
-                                                 lambda x: 1 / ((1j * w) * x), None)):
+            for rows, fn in zip(self._law_index, _stamp_laws(self.omega)):
                 if fn is not None and len(rows):
                     vt[rows] = fn(vt[rows])
         return vt
@@ -246,7 +249,6 @@ class Batch:
         self._flat_c0 = a0.reshape(-1)[self.flat] - self._flat_of @ self.g0
         rows, self._flat_cols = np.divmod(self.flat, n)
         self._flat_t = self._flat_cols * n + rows            # where it sits transposed
-        self._law_rows = [np.flatnonzero(self.laws == code) for code in range(4)]
         self._to_rows = sp.csr_matrix((np.ones(len(self.flat)),
                                        (rows, np.arange(len(self.flat)))),
                                       shape=(n, len(self.flat)))
