@@ -5,11 +5,13 @@
 
 import {getSamples, postCheck, postPhasors, postRows, postSolve, postWaveforms,
         showMagnitudesAs} from "./api.js";
+import {setupCautions} from "./cautions-bar.js";
 import {createCorrection} from "./correction.js";
 import {debounce, el, placeholder} from "./dom.js";
 import {createEditor} from "./editor.js";
 import {createHarmonics} from "./harmonics.js";
 import {createPort} from "./port.js";
+import {problemText, serverFault, showBanner, showDiagnostics, showServerSilent} from "./problems.js";
 import {setupFiles} from "./files.js";
 import {exportSheet} from "./sheet-export.js";
 import {setupTableButtons} from "./tables-out.js";
@@ -60,73 +62,23 @@ function ignoreAbort(err) {
 
 // ---- checking and solving -------------------------------------------------------
 
-function showCheckState(errors, warnings) {
-  const node = $("check-state");
-  if (errors.length) {
-    node.className = "check-state bad";
-    node.textContent = `✖ ${errors.length} error${errors.length > 1 ? "s" : ""}` +
-      (warnings.length ? `, ▲ ${warnings.length} warning${warnings.length > 1 ? "s" : ""}` : "");
-  } else if (warnings.length) {
-    node.className = "check-state";
-    node.textContent = `▲ ${warnings.length} warning${warnings.length > 1 ? "s" : ""}, no errors`;
-  } else {
-    node.className = "check-state ok";
-    node.textContent = "✓ no problems found";
-  }
-}
-
-function showDiagnostics(errors, warnings) {
-  const all = [...errors.map((d) => ({...d, severity: "error"})),
-               ...warnings.map((d) => ({...d, severity: "warning"}))];
-  editor.setDiagnostics(all);
-  showCheckState(errors, warnings);
-  const list = $("diagnostics");
-  list.replaceChildren(...all.map((d) => {
-    const where = d.line ? `line ${d.line}${d.column ? `:${d.column}` : ""}` : "circuit";
-    const item = el("li", {class: d.severity, tabindex: "0", dataset: {line: d.line || ""},
-                           title: d.line ? "go to this line" : null},
-      el("span", {class: "where"}, `${d.severity === "warning" ? "▲" : "✖"} ${where}`),
-      el("span", {class: "msg"}, d.message),
-      d.hint ? el("span", {class: "fix"}, d.hint) : null);
-    const go = () => { if (d.line) editor.focusAt(d.line, d.column || 1); };
-    item.addEventListener("click", go);
-    item.addEventListener("keydown", (e) => { if (e.key === "Enter") go(); });
-    return item;
-  }));
-}
-
 async function runCheck() {
   const text = editor.getText();
   const {signal, seq} = abortable("check");
   if (!text.trim()) {
-    showDiagnostics([], []);
+    showDiagnostics(editor, [], []);
     $("check-state").textContent = "";
     return;
   }
   try {
     const {status, data} = await postCheck(text, signal);
     if (seq !== state.seq.check) return;
-    if (status === 200 || status === 422) showDiagnostics(data.errors || [], data.warnings || []);
+    if (status === 200 || status === 422) showDiagnostics(editor, data.errors || [], data.warnings || []);
     else if (serverFault(status)) showServerSilent(data, status);
     else showBanner(problemText(data), "error");
   } catch (err) { ignoreAbort(err); }
 }
 const scheduleCheck = debounce(runCheck, CHECK_DELAY_MS);
-
-/** The server did not answer (status 0), was busy (503) or failed (5xx): not the circuit. */
-function serverFault(status) {
-  return status === 0 || status >= 500;
-}
-
-/** Say, where the check's state shows, that nothing is known of the text right now. */
-function showServerSilent(data, status) {
-  const node = $("check-state");
-  node.className = "check-state bad";
-  const busy = status === 503;
-  node.textContent = busy ? "? not checked: the server is busy" : "? not checked: the server is not answering";
-  showBanner(busy ? `The server is busy: ${problemText(data)}.`
-                  : `The server is not answering: ${problemText(data)}.`, "error");
-}
 
 /**
  * The circuit's text as last solved for a tool, saying `working` in `out` meanwhile;
@@ -149,11 +101,6 @@ function whyNotSolved() {
   return "The circuit does not solve: fix it first (see the problems under the editor).";
 }
 
-function problemText(data) {
-  const first = (data && data.errors && data.errors[0]) || {message: "unknown problem"};
-  return first.message + (first.hint ? ` (${first.hint})` : "");
-}
-
 /** Say when the results on screen no longer belong to the text in the editor. */
 function showEdited() {
   const edited = Boolean(state.answer) && editor.getText() !== state.solvedText;
@@ -161,17 +108,6 @@ function showEdited() {
   // the header's title is the solved circuit's: say so while the editor holds another
   $("fact-title").classList.toggle("stale", edited);
   $("fact-title").title = edited ? "the title of the circuit as last solved (edited since)" : "";
-}
-
-function showBanner(text, kind) {
-  const banner = $("result-banner");
-  if (!text) {
-    banner.hidden = true;
-    return;
-  }
-  banner.hidden = false;
-  banner.className = `banner ${kind === "note" ? "note" : ""}`;
-  banner.textContent = text;
 }
 
 async function solve() {
@@ -191,7 +127,7 @@ async function solve() {
     if (ok) {
       state.answer = data;
       state.solvedText = text;
-      showDiagnostics([], data.warnings || []);
+      showDiagnostics(editor, [], data.warnings || []);
       showEdited();
       $("results").classList.remove("stale");
       const warnings = data.display.warnings;
@@ -199,7 +135,7 @@ async function solve() {
       await renderResults();
       return true;
     } else if (status === 422) {
-      showDiagnostics(data.errors || [], data.warnings || []);
+      showDiagnostics(editor, data.errors || [], data.warnings || []);
       $("results").classList.toggle("stale", Boolean(state.answer));
       showBanner(`Not solved: ${problemText(data)}` +
         (state.answer ? " — the results below are from the last circuit that solved." : ""), "error");
@@ -508,19 +444,6 @@ function loadText(text, sampleName = "") {
   scheduleCheck();
 }
 
-function setupCautions(open) {
-  const footer = $("cautions");
-  const toggle = $("cautions-toggle");
-  const show = (on) => {
-    footer.classList.toggle("open", on);
-    toggle.setAttribute("aria-expanded", on ? "true" : "false");
-    save({cautionsOpen: on});
-  };
-  show(open);
-  toggle.addEventListener("click", () => show(!footer.classList.contains("open")));
-  $("caution-list").addEventListener("click", () => { if (!footer.classList.contains("open")) show(true); });
-}
-
 function setupTools() {
   const threePhase = createThreePhase({onSelect: (name) => select(name, {focus: false})});
   tools = {
@@ -570,7 +493,7 @@ async function exportCurrentSheet() {
       if (serverFault(result.status)) {
         showBanner(`No sheet: the server is not answering (${problemText(data)}).`, "error");
       } else {
-        showDiagnostics(data.errors || [], data.warnings || []);
+        showDiagnostics(editor, data.errors || [], data.warnings || []);
         showBanner(`No sheet: ${problemText(data)}`, "error");
       }
     }
