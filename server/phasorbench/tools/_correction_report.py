@@ -44,7 +44,9 @@ def report(*, circuit, source, sources, group, place, target, leading, method, c
     ``capacitor_reactance_ohm``, ``network_reactance_ohm``, ``near_harmonic``;
     ``stored_energy_j`` (all units), ``discharge``; ``ieee18`` (None without a rated
     voltage); ``circuit_lines``; ``warnings`` (contract shape), ``cautions``
-    (``title``, ``text``, ``detail``) and ``scope_note``.
+    (``title``, ``text``, ``detail``) and ``scope_note``; ``needed`` (True here) and
+    ``reason`` (None here: see `not_needed`). A ``voltage3`` block adds
+    ``pf_positive_sequence_before``/``_after``.
     """
     rms = 1.0 if circuit.amplitudes == "rms" else 1.0 / math.sqrt(2.0)
     freq = circuit.frequency
@@ -102,6 +104,7 @@ def report(*, circuit, source, sources, group, place, target, leading, method, c
                   "description": place["description"]},
         "target_pf": target, "target_sense": "unity" if target == 1 else
         ("leading" if leading else "lagging"), "method": method,
+        "needed": True, "reason": None,
         "capacitance_f": capacitance, "units": len(rows),
         "q_var": sum(r["q_var"] for r in rows),
         "pf_before": src_before["pf"], "pf_sense_before": src_before["pf_sense"],
@@ -136,6 +139,54 @@ def report(*, circuit, source, sources, group, place, target, leading, method, c
         out["pf_positive_sequence_after"] = _positive_sequence_pf(src_after, model.half)
     out["cautions"] = _cautions(out, rows, discharge)
     out["scope_note"] = caution_texts.SCOPE_NOTE
+    return out
+
+
+def not_needed(*, circuit, source, group, place, target, leading, before, model,
+               reason) -> dict:
+    """The result when the source already meets its target: no capacitor is needed.
+
+    The keys of `report`, so a reader of either never misses one: ``needed`` False,
+    ``reason`` (one sentence with the numbers), ``method`` "none needed";
+    ``capacitance_f``, ``q_var`` and ``stored_energy_j`` 0.0, ``units`` 0, ``capacitors``,
+    ``circuit_lines``, ``harmonic_orders`` and ``cautions`` empty (no capacitor to caution
+    about; ``scope_note`` stays); ``pf_after``, ``pf_sense_after`` and ``supply_after``
+    are those before (one solve, nothing added); ``pf_error`` is after − target; every
+    field that describes a capacitor (the ideal-bus estimate, its voltages and currents,
+    the resonance, ``discharge``, ``ieee18``, ``standard_sizes``) is None.
+    """
+    entry = _source_entry(before, source, group)
+    supply = _supply(entry, group)
+    out = {
+        "source": source, "source_kind": group.kind if group is not None else
+        circuit.elements[source].kind,
+        "frequency_hz": circuit.frequency, "amplitudes": circuit.amplitudes,
+        "place": {"connection": place["connection"], "nodes": place["nodes"],
+                  "star": place["star"], "star_floating": place["floating"],
+                  "description": place["description"]},
+        "target_pf": target, "target_sense": "unity" if target == 1 else
+        ("leading" if leading else "lagging"), "method": "none needed",
+        "needed": False, "reason": reason,
+        "capacitance_f": 0.0, "units": 0, "q_var": 0.0,
+        "pf_before": entry["pf"], "pf_sense_before": entry["pf_sense"],
+        "pf_after": entry["pf"], "pf_sense_after": entry["pf_sense"],
+        "pf_error": entry["pf"] - target,
+        "supply_before": supply, "supply_after": dict(supply),
+        "formula_capacitance_f": None, "formula_q_var": None,
+        "formula_difference_f": None, "formula_difference_rel": None,
+        "voltage_before": None, "voltage_after": None, "voltage_rise_rel": None,
+        "capacitor_current": None, "bank_line_current": None, "capacitors": [],
+        "harmonic_order": None, "harmonic_orders": [], "resonance_hz": None,
+        "capacitor_reactance_ohm": None, "network_reactance_ohm": None,
+        "near_harmonic": None, "stored_energy_j": 0.0, "discharge": None, "ieee18": None,
+        "circuit_lines": [], "warnings": [d.as_dict() for d in circuit.warnings],
+    }
+    if group is not None:
+        out["pf_positive_sequence_before"] = _positive_sequence_pf(entry, model.half)
+        out["pf_positive_sequence_after"] = out["pf_positive_sequence_before"]
+    out["cautions"] = []
+    out["scope_note"] = caution_texts.SCOPE_NOTE
+    out["standard_sizes"] = None
     return out
 
 

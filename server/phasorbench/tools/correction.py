@@ -29,9 +29,10 @@ from ..checks import conductive_parts
 from ..errors import CircuitError, Diagnostic
 from ..superposition import analysis_frequency_only
 from ..model import SOURCE_KINDS, Circuit, Element
+from ..presentation.formatting import eng
 from ..results import contract
 from ..solver import solve
-from ._correction_report import ieee18_every_order, report
+from ._correction_report import ieee18_every_order, not_needed, report
 from ._network import (canonical_node, derived, fresh_name, input_error,
                        port_model)
 from .standard_sizes import parse_ratings, standard_sizes
@@ -95,14 +96,19 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
         positive), ``pf_before``, ``pf_after`` (from the re-solved circuit),
         ``formula_capacitance_f``, ``voltage_before``/``voltage_after``,
         ``capacitor_current``, ``harmonic_order``, ``circuit_lines``, ``cautions`` and
-        ``standard_sizes`` (`standard_sizes.standard_sizes`).
+        ``standard_sizes`` (`standard_sizes.standard_sizes`). ``needed`` is True there;
+        when the source already meets the target (it runs at unity, or lagging at or
+        above a lagging target) no capacitor is needed and the answer is the normal
+        result of `_correction_report.not_needed`: ``needed`` False, ``reason``, the
+        power factor and supply as they are, the same keys with no capacitor in them.
 
     Raises
     ------
     CircuitError
         Unknown source or node, a source that is not a source, a target outside (0, 1],
-        or a target a shunt capacitor cannot reach (already leading, already at or
-        above the target, no reactive power to cancel).
+        a place with no voltage, or a target a shunt capacitor cannot reach (a source
+        running leading with a lagging target, more leading than a leading target, or
+        delivering no real power).
 
     Notes
     -----
@@ -157,13 +163,20 @@ def correct_power_factor(circuit: Circuit, source: str, target_pf: float, at=Non
     s_load0 = -model.source_power(np.zeros_like(m_matrix, dtype=complex))
     sense = -1.0 if leading else 1.0
     theta = sense * math.acos(target) if target < 1 else 0.0
-    _reachable(source, line, s_load0, theta, target, leading)
+    reason = _reachable(source, line, s_load0, theta, target, leading)
 
     legs_before = _leg_voltages(base, place)
     largest = max(abs(v) for v in base.node_voltages.values())
     if min(abs(v) for v in legs_before) <= _NO_POWER * largest:    # round-off of nothing
         raise input_error(f"there is no voltage at {place['description']}: a capacitor there "
                           "supplies nothing", "choose a place the source energises", line)
+    if reason is not None:
+        result = not_needed(circuit=circuit, source=source, group=group, place=place,
+                            target=target, leading=leading, before=contract(base),
+                            model=model, reason=reason)
+        if one_frequency is not None:
+            result["warnings"].append(one_frequency.as_dict())
+        return result
     mean_square = float(np.mean([abs(v) ** 2 for v in legs_before]))
     tan1 = s_load0.imag / s_load0.real
     tan2 = math.tan(theta)
@@ -350,8 +363,10 @@ def _capacitor_names(circuit: Circuit, place: dict) -> list[str]:
 
 
 def _reachable(source: str, line, s_load: complex, theta: float, target: float,
-               leading: bool) -> None:
-    """Refuse targets a shunt capacitor cannot reach, saying why."""
+               leading: bool) -> str | None:
+    """None when a shunt capacitor is needed and can help; the reason, in one sentence
+    with the numbers, when none is needed (unity, or lagging at or above a lagging
+    target); an input error, saying why, for a target a shunt capacitor cannot reach."""
     p, q = s_load.real, s_load.imag
     s = abs(s_load)
     wanted = f"{target:g} {'leading' if leading else 'lagging'}" if target < 1 else "unity"
@@ -361,22 +376,23 @@ def _reachable(source: str, line, s_load: complex, theta: float, target: float,
                           "check the source name and that it feeds a load", line)
     now_pf = p / s
     if abs(q) <= 1e-9 * s:
-        raise input_error(f"source {source} already runs at unity power factor: there is no "
-                          "reactive power to cancel", "no capacitor is needed", line)
+        return (f"{source} already runs at unity power factor (P = {eng(p, 'W')}, Q = 0 "
+                f"within round-off), which meets any target, {wanted} included: there is no "
+                "reactive power to cancel, so no capacitor is needed.")
     phi = math.atan2(q, p)
     now = f"{now_pf:.6g} {'lagging' if q > 0 else 'leading'}"
     if phi <= theta:
         if q < 0 and not leading:
             raise input_error(f"source {source} already runs at {now}: a shunt capacitor only "
-                              "makes it lead more", "aim at a leading target or "
-                              "remove capacitance instead", line)
+                              "makes it lead more", "aim at a leading target, or add a "
+                              "shunt reactor or remove capacitance instead", line)
         if q < 0:
             raise input_error(f"source {source} already runs at {now}, more leading than the "
                               f"target {wanted}: more capacitance lowers it further",
                               "remove capacitance instead", line)
-        raise input_error(f"source {source} already runs at {now}, at or above the target "
-                          f"{wanted}: no capacitor is needed", "lower the target, or check "
-                          "the source", line)
+        return (f"{source} already runs at {now} (P = {eng(p, 'W')}, Q = {eng(q, 'var')}), at "
+                f"or above the target {wanted}: no capacitor is needed.")
+    return None
 
 
 # --- the exact susceptance ------------------------------------------------------------
