@@ -22,6 +22,13 @@ function placeOptions(source) {
 
 const nodeLabel = (n) => (n === "0" ? "0 (ground)" : n);
 
+/** The answer's warnings as a list, or null when there are none. */
+function warningList(d) {
+  return d.warnings.length ? el("ul", {class: "tool-warnings"}, d.warnings.map((w) =>
+    el("li", {}, el("span", {class: "mark", "aria-hidden": "true"}, "▲ "), w.message,
+       w.hint ? el("span", {class: "fix"}, ` — ${w.hint}`) : null))) : null;
+}
+
 export function createCorrection({solvedFor, onAppend}) {
   const form = $("pfc-form");
   const out = $("pfc-out");
@@ -90,8 +97,19 @@ export function createCorrection({solvedFor, onAppend}) {
     return body;
   }
 
+  /** A source that meets its target already: the heading and facts, nothing to append. */
+  function renderNotNeeded(d) {
+    const warnings = warningList(d);
+    fill(out,
+      el("p", {class: "tool-heading", dataset: {needed: "false"}}, el("b", {}, d.heading),
+         el("span", {class: "hint"}, ` — ${d.method}`)),
+      warnings, factList(d.facts),
+      d.scope_note ? el("p", {class: "hint scope"}, d.scope_note) : null);
+  }
+
   function renderAnswer(data, text) {
     const d = data.display;
+    if (data.needed === false) { renderNotNeeded(d); return; }
     const appendButton = el("button", {type: "button", class: "act primary", id: "pfc-append"},
                             `Append ${d.lines.length > 1 ? `these ${d.lines.length} lines` : "this line"} to the circuit and solve`);
     const state = el("span", {class: "hint", id: "pfc-append-state", role: "status"});
@@ -102,9 +120,7 @@ export function createCorrection({solvedFor, onAppend}) {
                                : "not appended: the circuit changed since this was sized; size it again";
       if (!done) appendButton.disabled = false;
     });
-    const warnings = d.warnings.length ? el("ul", {class: "tool-warnings"}, d.warnings.map((w) =>
-      el("li", {}, el("span", {class: "mark", "aria-hidden": "true"}, "▲ "), w.message,
-         w.hint ? el("span", {class: "fix"}, ` — ${w.hint}`) : null))) : null;
+    const warnings = warningList(d);
     const [first, ...more] = d.cautions;
     const cautions = first ? el("div", {class: "tool-cautions"},
       el("p", {}, el("b", {}, `${first.title}: `), first.detail),

@@ -22,12 +22,6 @@ __all__ = ["add_tool_commands"]
 _FILE_HELP = "a .circuit file, or - for standard input"
 
 
-def _complex_power(supply: dict) -> str:
-    """'8.756 kW + 3.866 kvar', with the sign of Q written once ('− 1.569 kvar')."""
-    q = supply["q_var"]
-    return f"{eng(supply['p_w'], 'W')} {'−' if q < 0 else '+'} {eng(abs(q), 'var')}"
-
-
 def add_correction_options(parser, place: str = "") -> None:
     """Where a correction goes and how it is built: ``--at``/``--across`` (named
     ``--{place}at``/``--{place}across`` when ``place`` is given, as the sheet's
@@ -156,6 +150,9 @@ def _supply_current(supply: dict) -> str:
 
 def correction_text(r: dict) -> str:
     """The terminal report of ``correct_power_factor``'s result."""
+    from ..presentation.tools_display import correction_display, supply_power
+    if r.get("needed") is False:
+        return _not_needed_text(r, correction_display(r))
     before, after = r["supply_before"], r["supply_after"]
     units = r["units"]
     out = [f"Power-factor correction of {r['source']}: capacitor at {r['place']['description']}",
@@ -170,7 +167,7 @@ def correction_text(r: dict) -> str:
         ("power factor", f"{power_factor(r['pf_before'], r['pf_sense_before'])} → "
                          f"{power_factor(r['pf_after'], r['pf_sense_after'], 9)} "
                          f"(target {power_factor(r['target_pf'], r['target_sense'])})"),
-        ("supply", f"{_complex_power(before)} → {_complex_power(after)}"),
+        ("supply", f"{supply_power(before)} → {supply_power(after)}"),
         ("supply current", f"{_supply_current(before)} → {_supply_current(after)}"),
         ("ideal-bus formula", f"{eng(r['formula_capacitance_f'], 'F', 6)}{each} from "
                               f"Qc = P(tanφ1 − tanφ2) = {eng(r['formula_q_var'], 'var')} "
@@ -217,6 +214,19 @@ def correction_text(r: dict) -> str:
                                  subsequent_indent="    "))
     out += [textwrap.fill(r["scope_note"], width=92, initial_indent="  ",
                           subsequent_indent="  ")]
+    return "\n".join(out) + "\n"
+
+
+def _not_needed_text(r: dict, shown: dict) -> str:
+    """The terminal report when the source meets its target already: the page's facts."""
+    out = [f"Power-factor correction of {shown['heading']}",
+           f"frequency {eng(r['frequency_hz'], 'Hz')}   {_convention(r)}   place: "
+           f"{r['place']['description']}", ""]
+    out += _rows([(f["term"], f["value"]) for f in shown["facts"] if f["key"] != "reason"])
+    out += ["", textwrap.fill(r["reason"], width=92, initial_indent="  ",
+                              subsequent_indent="  "),
+            "", textwrap.fill(r["scope_note"], width=92, initial_indent="  ",
+                              subsequent_indent="  ")]
     return "\n".join(out) + "\n"
 
 

@@ -9,8 +9,7 @@ from __future__ import annotations
 from .display import _percent, _signed_percent
 from .formatting import MISSING, eng, phasor, plain, power_factor, rect
 
-__all__ = ["correction_display", "port_display", "standard_sizes_display"]
-
+__all__ = ["correction_display", "port_display", "standard_sizes_display", "supply_power"]
 
 
 def _fact(key: str, term: str, value: str, flag: str | None = None) -> dict:
@@ -49,8 +48,11 @@ def correction_display(r: dict) -> dict:
     "q"}], "lines", "warnings": [{"message", "hint"}], "cautions": [{"title", "detail"}],
     "scope_note"}``. ``comment`` and ``lines`` are what the page appends to the circuit
     (a ``#`` comment line saying what was sized, then the capacitor lines); ``cautions``
-    are those with this result's own numbers (stored charge first).
+    are those with this result's own numbers (stored charge first). A result with
+    ``needed`` False (the source meets its target already) reads as `_not_needed`.
     """
+    if r.get("needed") is False:
+        return _not_needed(r)
     units = r["units"]
     each = " each" if units > 1 else ""
     before, after = r["supply_before"], r["supply_after"]
@@ -137,6 +139,43 @@ def correction_display(r: dict) -> dict:
                      for c in r.get("cautions", []) if c.get("detail")],
         "scope_note": r.get("scope_note", ""),
         "standard": standard_sizes_display(r),
+    }
+
+
+def supply_power(supply: dict, floor: float = 0.0) -> str:
+    """'8.756 kW + 3.866 kvar' of a supply dict, the sign of Q written once
+    ('− 1.569 kvar'); a Q below ``floor`` (round-off) reads as '+ 0 var'."""
+    q = supply["q_var"]
+    return (f"{eng(supply['p_w'], 'W')} {'−' if q < 0 and abs(q) >= floor else '+'} "
+            f"{eng(abs(q), 'var', floor=floor)}")
+
+
+#: Reactive power below this share of |S| is round-off of a unity supply (the core's
+#: own threshold for "no reactive power to cancel").
+_UNITY_Q = 1e-9
+
+
+def _not_needed(r: dict) -> dict:
+    """`correction_display`'s keys for a source that needs no capacitor: the power factor
+    now against the target, the supply as it is, the reason; no lines, no capacitors."""
+    supply = r["supply_before"]
+    target = power_factor(r["target_pf"], r["target_sense"])
+    facts = [
+        _fact("pf", "power factor", f"{power_factor(r['pf_before'], r['pf_sense_before'])} now; "
+                                    f"target {target} — ✓ met already", "ok"),
+        _fact("supply", "supply P + jQ",
+              supply_power(supply, floor=_UNITY_Q * (supply.get("s_va") or 0.0))),
+        _fact("supply_current", "supply current", _supply_current(supply["current"])),
+        _fact("reason", "why", r["reason"]),
+    ]
+    return {
+        "comment": "", "heading": f"{r['source']}: no correction needed",
+        "method": "the source meets the target as the circuit is drawn (solved once, "
+                  "nothing added)",
+        "facts": facts, "capacitors": [], "lines": [],
+        "warnings": [{"message": w.get("message", ""), "hint": w.get("hint", "")}
+                     for w in r.get("warnings", [])],
+        "cautions": [], "scope_note": r.get("scope_note", ""), "standard": None,
     }
 
 

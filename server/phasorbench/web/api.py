@@ -367,8 +367,9 @@ async def correct(body: CorrectionBody, request: Request):
 
     The answer is the correction result (``capacitance_f``, ``q_var``, ``pf_before``,
     ``pf_after``, ``formula_capacitance_f``, ``circuit_lines`` …) plus ``display`` text;
-    422 ``{"errors": [...], "warnings": [...]}`` for a circuit with errors or a target
-    a capacitor there cannot reach.
+    a source that meets its target already is a 200 answer too, with ``needed`` false and
+    its ``reason``; 422 ``{"errors": [...], "warnings": [...]}`` for a circuit with errors
+    or a target a capacitor there cannot reach.
     """
     ask = body.model_dump(include={"source", "target", "at", "across", "bank", "leading",
                                    "rated_voltage", "ratings_kvar"})
