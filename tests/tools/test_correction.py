@@ -21,6 +21,8 @@ from phasorbench.results import contract
 from phasorbench.tools import correct_power_factor, port_equivalent
 from phasorbench.workflow import read_circuit, solve_text
 
+from tests.reference.conftest import lcapy_solve  # noqa: F401  (the session fixture)
+
 from .quoting import figures
 
 
@@ -385,7 +387,6 @@ def test_cautions_carry_stored_energy_and_discharge():
     ({"source": "Zm", "target_pf": 0.9}, "not an independent source"),
     ({"source": "Vx", "target_pf": 0.9}, "sources of this circuit: Vs"),
     ({"source": "Vss", "target_pf": 0.9}, "did you mean 'Vs'"),
-    ({"source": "Vs", "target_pf": 0.7}, "at or above the target"),
     ({"source": "Vs", "target_pf": 0.9, "at": "nowhere"}, "not a node"),
     ({"source": "Vs", "target_pf": 0.9, "at": ("bus", "bus")}, "repeats a node"),
     ({"source": "Vs", "target_pf": 0.9, "at": "bus", "bank": "wye"}, "three-phase"),
@@ -403,15 +404,15 @@ def test_input_errors_are_circuit_errors(kwargs, words):
     assert words in message
 
 
-def test_already_leading_and_unity_sources_are_refused():
+def test_already_leading_sources_are_refused():
+    # common practice, no source: a shunt capacitor only adds leading vars, so a source
+    # that leads already cannot come back to a lagging target, nor lead less.
     leading = "frequency 50 Hz\nVs: voltage a -> 0 230 V\nZ: impedance a -> 0 6 - j5 ohm\n"
-    with pytest.raises(CircuitError, match="only makes it lead more"):
+    with pytest.raises(CircuitError, match="only makes it lead more") as info:
         correct_power_factor(read_circuit(leading), "Vs", 0.95)
+    assert "reactor" in info.value.diagnostics[0].hint
     with pytest.raises(CircuitError, match="more leading than the target"):
         correct_power_factor(read_circuit(leading), "Vs", 0.95, leading=True)
-    unity = "frequency 50 Hz\nVs: voltage a -> 0 230 V\nR: resistor a -> 0 6 ohm\n"
-    with pytest.raises(CircuitError, match="no reactive power to cancel"):
-        correct_power_factor(read_circuit(unity), "Vs", 0.95)
 
 
 def test_a_source_taking_power_and_a_place_without_a_path_are_refused():
@@ -445,6 +446,140 @@ Rg: resistor far -> 0 100 ohm
     for method in ("closed-form", "bracketed"):
         with pytest.raises(CircuitError, match="no shunt capacitance"):
             correct_power_factor(read_circuit(far), "Vs", 0.99, at="far", method=method)
+
+
+# --- no correction needed --------------------------------------------------------------
+
+#: An invented 400 V, 50 Hz feeder: a short line (0.05 Ω, 0.2 mH) and a load of
+#: 9 + j2 Ω, so the supply runs near 0.975 lagging.
+GOOD_FEEDER = """frequency 50 Hz
+Vs: voltage s -> 0 400 V
+Rl: resistor s -> x 0.05 ohm
+Ll: inductor x -> bus 0.2 mH
+Zm: impedance bus -> 0 9 + j2 ohm
+"""
+
+
+def _delivered(reference, name: str, first: str, second: str) -> complex:
+    """S = −V·I* of a source from lcapy's phasors (its current runs through it)."""
+    v = reference.voltage(first, second)
+    return -v * reference.currents[name].conjugate()
+
+
+def test_a_feeder_already_above_a_lagging_target_needs_no_capacitor(lcapy_solve):
+    c = read_circuit(GOOD_FEEDER)
+    r = correct_power_factor(c, "Vs", 0.95, at="bus")
+    assert r["needed"] is False and r["method"] == "none needed"
+    s = _delivered(lcapy_solve(c), "Vs", "s", "0")
+    supply = r["supply_before"]
+    assert supply["p_w"] == pytest.approx(s.real, rel=1e-9)            # lcapy
+    assert supply["q_var"] == pytest.approx(s.imag, rel=1e-9)          # lcapy
+    # pf = P/|S| and Q = P·tanφ (power triangle; common practice, no source).
+    assert r["pf_before"] == pytest.approx(s.real / abs(s), rel=1e-9)  # lcapy + P/|S|
+    assert supply["q_var"] == pytest.approx(
+        supply["p_w"] * math.tan(math.acos(r["pf_before"])), rel=1e-9)  # Q = P·tanφ
+    assert r["pf_before"] > 0.95 and r["pf_sense_before"] == "lagging"  # P/|S| of lcapy's S
+    # Nothing added: after is before, from the one solve.
+    assert r["pf_after"] == r["pf_before"] and r["supply_after"] == supply
+    assert r["pf_error"] == pytest.approx(r["pf_before"] - 0.95, abs=1e-15)
+    assert r["capacitance_f"] == 0.0 and r["q_var"] == 0.0 and r["units"] == 0
+    assert r["circuit_lines"] == [] and r["capacitors"] == [] and r["standard_sizes"] is None
+    assert r["cautions"] == [] and r["scope_note"]
+    # The reason says why, with the numbers (P and Q to 4 figures, lcapy's values).
+    assert f"{s.real / abs(s):.6g} lagging" in r["reason"] and "0.95 lagging" in r["reason"]
+    assert f"P = {s.real / 1e3:.4g} kW" in r["reason"]                  # lcapy
+    assert "no capacitor is needed" in r["reason"]
+
+
+def test_no_correction_has_every_key_of_a_correction():
+    # common practice, no source: a reader of either answer never misses a key, and the
+    # fields of a capacitor that is not there are empty, not absent.
+    c = read_circuit(GOOD_FEEDER)
+    normal = correct_power_factor(c, "Vs", 0.99, at="bus")
+    none = correct_power_factor(c, "Vs", 0.9, at="bus")
+    assert normal["needed"] is True and normal["reason"] is None
+    assert set(none) == set(normal)
+    for key in ("formula_capacitance_f", "formula_q_var", "formula_difference_f",
+                "formula_difference_rel", "voltage_before", "voltage_after",
+                "voltage_rise_rel", "capacitor_current", "bank_line_current",
+                "harmonic_order", "resonance_hz", "capacitor_reactance_ohm",
+                "network_reactance_ohm", "near_harmonic", "discharge", "ieee18"):
+        assert none[key] is None, key
+    assert none["harmonic_orders"] == [] and none["stored_energy_j"] == 0.0
+    assert none["place"] == normal["place"]
+
+
+@pytest.mark.parametrize("target, leading", [(0.9, False), (0.9, True), (1.0, False),
+                                             (0.3, True)])
+def test_a_resistive_load_needs_no_correction_whatever_the_target(target, leading):
+    # P = V²/R through the series resistances (Ohm's law; common practice, no source): an
+    # invented 400 V, 60 Hz supply feeding 12 Ω through 0.5 Ω. Unity is above any target.
+    c = read_circuit("frequency 60 Hz\nV1: voltage s -> 0 400 V\n"
+                     "Rl: resistor s -> a 0.5 ohm\nRload: resistor a -> 0 12 ohm\n")
+    r = correct_power_factor(c, "V1", target, leading=leading, rated_voltage=480)
+    assert r["needed"] is False
+    assert r["supply_before"]["p_w"] == pytest.approx(400 ** 2 / 12.5, rel=1e-12)  # V²/R
+    assert r["pf_before"] == pytest.approx(1.0, abs=1e-12)              # P/|S| with Q = 0
+    assert r["pf_sense_before"] == "unity" and r["ieee18"] is None
+    assert "unity" in r["reason"] and "reactive power" in r["reason"]
+    assert r["target_sense"] == ("unity" if target == 1 else
+                                 "leading" if leading else "lagging")
+
+
+def test_a_three_phase_block_at_its_target_needs_no_bank():
+    # check-values C16's load (100 kW at 0.75 lagging, 400 V 50 Hz) asked for 0.7: IEEE
+    # Std 1459-2010, balanced sinusoidal: S = √3·V_L·I_L, positive-sequence PF = P/S.
+    c = read_circuit(_three_phase(100e3, 0.75, 400, 50, "delta"))
+    r = correct_power_factor(c, "G", 0.7, bank="delta")
+    assert r["needed"] is False and r["source_kind"] == "voltage3"
+    assert r["pf_before"] == pytest.approx(0.75, abs=1e-12)                       # C16
+    assert r["supply_before"]["p_w"] == pytest.approx(100e3, rel=1e-12)           # C16
+    for phase in "abc":
+        assert figures(_mag(r["supply_before"]["current"][phase])) == 192.45     # C16
+    assert r["pf_positive_sequence_before"] == pytest.approx(0.75, abs=1e-12)     # IEEE 1459
+    assert r["pf_positive_sequence_after"] == r["pf_positive_sequence_before"]
+    assert r["place"]["connection"] == "delta" and r["bank_line_current"] is None
+
+
+def test_a_bad_place_is_still_an_error_when_no_capacitor_is_needed():
+    # common practice, no source: a wrong node name is a mistake whatever the answer.
+    c = read_circuit(GOOD_FEEDER)
+    with pytest.raises(CircuitError, match="not a node"):
+        correct_power_factor(c, "Vs", 0.9, at="nowhere")
+    with pytest.raises(CircuitError, match="no conductive path"):
+        correct_power_factor(read_circuit(GOOD_FEEDER + "Ri: resistor p -> q 1 ohm\n"),
+                             "Vs", 0.9, at=("p", "bus"))
+    with pytest.raises(CircuitError, match="no voltage at"):
+        correct_power_factor(read_circuit(GOOD_FEEDER + "Rz: resistor bus -> q 0 ohm\n"
+                                          "Rq: resistor q -> 0 5 ohm\n"),
+                             "Vs", 0.9, at=("bus", "q"))
+
+
+def test_no_correction_with_other_frequencies_keeps_the_warning():
+    # formula: at 50 Hz V1 alone drives 2 Ω, P = 10²/2 = 50 W at unity (Ohm's law).
+    c = read_circuit("frequency 50 Hz\nV1: voltage a -> 0 10 V\n"
+                     "V3: voltage b -> a 10 V freq 150 Hz\nR: resistor b -> c 1 ohm\n"
+                     "Rl: resistor c -> 0 1 ohm\n")
+    r = correct_power_factor(c, "V1", 0.95)
+    assert r["needed"] is False
+    assert r["supply_before"]["p_w"] == pytest.approx(50.0, rel=1e-12)     # V²/R
+    assert any("150 Hz are set to zero" in w["message"] for w in r["warnings"])
+
+
+@settings(max_examples=40, deadline=None, derandomize=True)
+@given(pf=st.floats(0.3, 0.999), margin=st.floats(1e-4, 0.2))
+def test_needed_exactly_when_the_target_is_above_the_power_factor(pf, margin):
+    # PF = cos φ of the load impedance's angle on an ideal bus (textbook definition;
+    # common practice, no source): a lagging target below it needs nothing, above it
+    # needs a capacitor.
+    z = cmath.rect(10.0, math.acos(pf))
+    c = read_circuit(f"frequency 50 Hz\nVs: voltage a -> 0 230 V\nZ: impedance a -> 0 {_z(z)}\n")
+    low = max(pf - margin, 0.01)
+    r = correct_power_factor(c, "Vs", low)
+    assert r["needed"] is False
+    assert r["pf_before"] == pytest.approx(pf, abs=1e-12)                  # cos φ
+    high = min(pf + margin, 1.0)
+    assert correct_power_factor(c, "Vs", high)["needed"] is True
 
 
 # --- property: the suggested line, re-read, meets the target --------------------------
