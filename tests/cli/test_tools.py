@@ -134,9 +134,44 @@ def test_correct_three_phase_text_lists_every_unit(write, capsys):
     assert "bank line currents" in out
 
 
+def test_correct_needs_nothing_above_the_target_json(write, capsys):
+    # check-values C14's load (4 kW, 0.8 lagging, 120 V 60 Hz) asked for 0.7: P = 4 kW,
+    # Q = P·tan(acos 0.8) = 3 kvar (power triangle), I = S/V = 5000/120 = 41.6667 A.
+    status = main(["correct", write(C14), "--source", "Vs", "--target", "0.7", "--json"])
+    out = capsys.readouterr()
+    assert status == 0 and out.err == ""
+    r = _strict_json(out.out)
+    assert r["needed"] is False and r["capacitance_f"] == 0.0 and r["circuit_lines"] == []
+    assert r["pf_before"] == pytest.approx(0.8, abs=1e-12)                        # C14
+    assert r["supply_before"]["q_var"] == pytest.approx(
+        4000 * math.tan(math.acos(0.8)), rel=1e-12)                                # Q = P·tanφ
+    assert figures(r["supply_before"]["current"]["mag"]) == 41.6667               # C14
+
+
+def test_correct_needs_nothing_text(write, capsys):
+    # C14's load again: 0.8 lagging, 4 kW + 3 kvar (check-values C14).
+    status = main(["correct", write(C14), "--source", "Vs", "--target", "0.7"])
+    out = capsys.readouterr().out
+    assert status == 0
+    assert out.startswith("Power-factor correction of Vs: no correction needed\n")
+    assert "0.8 lagging now; target 0.7 lagging" in out                           # C14
+    assert "4 kW + 3 kvar" in out and "41.67 A" in out                            # C14
+    assert "no capacitor is needed" in out and "Add to the circuit" not in out
+    assert "Local electrical codes" in out                                        # scope note
+
+
+def test_correct_a_leading_source_is_still_an_input_error(write, capsys):
+    # common practice, no source: a shunt capacitor cannot make a leading source lag.
+    leading = "frequency 50 Hz\nVs: voltage a -> 0 230 V\nZ: impedance a -> 0 6 - j5 ohm\n"
+    path = write(leading)
+    assert main(["correct", path, "--source", "Vs", "--target", "0.95"]) == 2
+    err = capsys.readouterr().err
+    assert "only makes it lead more" in err and "reactor" in err and "Traceback" not in err
+
+
 @pytest.mark.parametrize("args, words", [
     (["--target", "1.2"], "at most 1"),
-    (["--target", "0.7"], "at or above the target"),
+    (["--target", "0.7", "--at", "bsu"], "did you mean 'bus'"),   # place first
     (["--target", "0.95", "--source", "Zm"], "not an independent source"),
     (["--target", "0.95", "--at", "bsu"], "did you mean 'bus'"),
     (["--target", "0.95", "--rated-voltage", "4x"], "is not a voltage"),
