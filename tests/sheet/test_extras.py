@@ -67,6 +67,23 @@ def test_correction_on_the_sheet_is_the_pages_panel():
     assert "0.8 lagging → 0.95 lagging" in shown
 
 
+def test_a_correction_not_needed_on_the_sheet_reads_plainly():
+    # check-values C14's motor (4 kW at 0.8 lagging, 120 V) asked for 0.7: nothing to add;
+    # Q = P·tan(acos 0.8) = 3 kvar (power triangle).
+    tools = run_power_tools(MOTOR, correct={"source": "V1", "target": 0.7})
+    section = tool_section(tools["correction"], "correction")
+    assert section["title"] == "V1: no correction needed" and section["rows"] == []
+    assert section["lines"] == [] and section["capacitors"] == []
+    assert section["cautions"] == [] and section["standard"] is None
+    facts = {f["term"]: f["value"] for f in section["facts"]}
+    assert facts["supply P + jQ"] == "4 kW + 3 kvar"                          # C14
+    assert facts["power factor"].startswith("0.8 lagging now; target 0.7 lagging")
+    shown = visible_text(render_sheet(MOTOR, now=NOW, **tools))
+    assert "V1: no correction needed" in shown and "no capacitor is needed" in shown
+    assert "Lines to add to the circuit" not in shown and "Capacitors" not in shown
+    assert "Standard bank ratings" not in shown
+
+
 def test_port_on_the_sheet():
     tools = run_power_tools(THEVENIN, port=("t", "0"))
     shown = visible_text(render_sheet(THEVENIN, now=NOW, **tools))

@@ -541,6 +541,23 @@ def test_a_three_phase_block_at_its_target_needs_no_bank():
     assert r["place"]["connection"] == "delta" and r["bank_line_current"] is None
 
 
+def test_a_source_on_its_target_needs_no_capacitor():
+    # PF = cos φ of the load's angle on an ideal bus (textbook definition; common
+    # practice, no source): 0.9 lagging asked for 0.9 lagging, 0.9 leading for 0.9
+    # leading, both on the target to round-off; a millionth below it needs a capacitor.
+    lag = cmath.rect(10.0, math.acos(0.9))
+    text = f"frequency 50 Hz\nVs: voltage a -> 0 230 V\nZ: impedance a -> 0 {_z(lag)}\n"
+    r = correct_power_factor(read_circuit(text), "Vs", 0.9)
+    assert r["needed"] is False and "on the target 0.9 lagging" in r["reason"]
+    assert r["pf_before"] == pytest.approx(0.9, abs=1e-12)                 # cos φ
+    assert correct_power_factor(read_circuit(text), "Vs", 0.9 + 1e-6)["needed"] is True
+    lead = text.replace(_z(lag), _z(lag.conjugate()))
+    r = correct_power_factor(read_circuit(lead), "Vs", 0.9, leading=True)
+    assert r["needed"] is False and r["pf_sense_before"] == "leading"
+    with pytest.raises(CircuitError, match="more leading than the target"):
+        correct_power_factor(read_circuit(lead), "Vs", 0.9 + 1e-6, leading=True)
+
+
 def test_a_bad_place_is_still_an_error_when_no_capacitor_is_needed():
     # common practice, no source: a wrong node name is a mistake whatever the answer.
     c = read_circuit(GOOD_FEEDER)

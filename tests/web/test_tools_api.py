@@ -236,7 +236,7 @@ def test_correct_warns_near_a_characteristic_harmonic(api):
     ({"source": "V9", "target": 0.95}, "'V9' is not an element or block"),
     ({"source": "Zload", "target": 0.95}, "not an independent source"),
     ({"source": "V1", "target": 1.5}, "at most 1"),
-    ({"source": "V1", "target": 0.7}, "no capacitor is needed"),
+    ({"source": "V1", "target": 0.7, "at": "nowhere"}, "nowhere"),   # place first
     ({"source": "V1", "target": 0.95, "at": "nowhere"}, "nowhere"),
     ({"source": "V1", "target": 0.95, "at": "a", "across": ["a", "0"]}, "not both"),
     ({"source": "V1", "target": 0.95, "at": []}, "one node, two nodes or three"),
@@ -267,6 +267,41 @@ def test_correct_a_leading_source_says_why(api):
     body = strict_json(api.post("/api/correct", json={"netlist": leading, "source": "V1",
                                                       "target": 0.95}))
     assert "leading" in body["errors"][0]["message"]        # issue 5: clear message, no answer
+
+
+@pytest.mark.parametrize("target, leading", [(0.7, False), (0.8, False)])
+def test_correct_a_source_at_or_above_its_target_is_a_200_answer(api, target, leading):
+    # check-values C14: 4 kW at 0.8 lagging, 120 V: Q = P·tan(acos 0.8) = 3 kvar (power
+    # triangle), I = |S|/V = 5000/120 = 41.6667 A; 0.8 meets a 0.8 target already.
+    r = api.post("/api/correct", json={"netlist": C14, "source": "V1", "target": target,
+                                       "leading": leading})
+    assert r.status_code == 200
+    body = strict_json(r)
+    assert body["needed"] is False and body["capacitance_f"] == 0.0
+    assert body["pf_before"] == pytest.approx(0.8, abs=1e-12)                 # C14
+    assert body["supply_before"]["p_w"] == pytest.approx(4000, rel=1e-12)     # C14
+    assert body["supply_before"]["q_var"] == pytest.approx(
+        4000 * math.tan(math.acos(0.8)), rel=1e-9)                           # Q = P·tanφ
+    assert figures(body["supply_before"]["current"]["mag"]) == 41.6667       # C14
+    assert body["standard_sizes"] is None and body["circuit_lines"] == []
+    d = body["display"]
+    assert d["heading"] == "V1: no correction needed" and d["lines"] == []
+    assert d["standard"] is None and d["capacitors"] == []
+    assert fact(d, "supply")["value"] == "4 kW + 3 kvar"                      # C14
+    assert "no capacitor is needed" in fact(d, "reason")["value"]
+
+
+def test_correct_unity_source_with_a_leading_target_is_a_200_answer(api):
+    # Ohm's law: 230 V across 50 Ω takes P = V²/R = 1058 W at unity (common practice,
+    # no source); unity is above any target, leading ones too.
+    unity = "frequency 50 Hz\nV1: voltage a -> 0 230 V\nR1: resistor a -> 0 50 ohm\n"
+    r = api.post("/api/correct", json={"netlist": unity, "source": "V1", "target": 0.9,
+                                       "leading": True})
+    assert r.status_code == 200
+    body = strict_json(r)
+    assert body["needed"] is False and body["target_sense"] == "leading"
+    assert body["supply_before"]["p_w"] == pytest.approx(230 ** 2 / 50, rel=1e-12)   # V²/R
+    assert body["pf_sense_before"] == "unity"
 
 
 # ---- POST /api/port ------------------------------------------------------------------

@@ -362,6 +362,11 @@ def _capacitor_names(circuit: Circuit, place: dict) -> list[str]:
     return [f"{base}_a", f"{base}_b", f"{base}_c"]
 
 
+#: A power factor this close to the target is on it: the round-off of the solve and of
+#: the circuit's values as written (a load sized for 0.8 reads back as 0.7999999999999999).
+_ON_TARGET = 1e-9
+
+
 def _reachable(source: str, line, s_load: complex, theta: float, target: float,
                leading: bool) -> str | None:
     """None when a shunt capacitor is needed and can help; the reason, in one sentence
@@ -381,6 +386,9 @@ def _reachable(source: str, line, s_load: complex, theta: float, target: float,
                 "reactive power to cancel, so no capacitor is needed.")
     phi = math.atan2(q, p)
     now = f"{now_pf:.6g} {'lagging' if q > 0 else 'leading'}"
+    if abs(now_pf - target) <= _ON_TARGET and (target == 1 or (q < 0) == leading):
+        return (f"{source} already runs at {now} (P = {eng(p, 'W')}, Q = {eng(q, 'var')}), on "
+                f"the target {wanted}: no capacitor is needed.")
     if phi <= theta:
         if q < 0 and not leading:
             raise input_error(f"source {source} already runs at {now}: a shunt capacitor only "
