@@ -99,6 +99,34 @@ def test_correct_a_sample_then_append_the_capacitor(new_page, tools_server, arti
     page.screenshot(path=str(artifacts / "tools-correction-appended-1366x768.png"))
 
 
+def test_a_source_above_its_target_needs_no_capacitor(new_page, tools_server, artifacts):
+    page = new_page()
+    open_page(page, tools_server)
+    page.fill("#pfc-target", "0.7")
+    with page.expect_response(lambda r: r.url.endswith("/api/correct")) as answer:
+        page.click("#pfc-form button[type=submit]")
+    assert answer.value.status == 200                # an answer, not a problem
+    page.wait_for_selector("#pfc-out .tool-heading", timeout=TIMEOUT_MS)
+    assert page.inner_text("#pfc-out .tool-heading b") == "V1: no correction needed"
+    # check-values C14: 4 kW at 0.8 lagging from 120 V: Q = P·tan(acos 0.8) = 3 kvar
+    # (power triangle), I = |S|/V = 5000/120 = 41.67 A.
+    assert fact_text(page, "pfc-out", "pf").startswith("0.8 lagging now; target 0.7 lagging")
+    assert fact_text(page, "pfc-out", "supply") == "4 kW + 3 kvar"
+    assert fact_text(page, "pfc-out", "supply_current").startswith("41.67 A")
+    assert "no capacitor is needed" in fact_text(page, "pfc-out", "reason")
+    # Nothing to append: no button, no lines box, no standard ratings, no problem list.
+    for absent in ("#pfc-append", "#pfc-out pre.lines", "#pfc-out .standard-sizes",
+                   "#pfc-out .tool-problems", "#pfc-out .tool-cautions"):
+        assert page.locator(absent).count() == 0, absent
+    assert "Local electrical codes" in page.inner_text("#pfc-out .scope")
+    page.locator("#tools").scroll_into_view_if_needed()
+    page.screenshot(path=str(artifacts / "tools-correction-not-needed-1366x768.png"))
+    # The same tab then sizes a real correction with its Append button again.
+    page.fill("#pfc-target", "0.95")
+    size_capacitor(page)
+    assert fact_text(page, "pfc-out", "capacitance") == "310.438 µF (1 unit)"   # C14
+
+
 def test_a_three_phase_block_row_opens_onto_its_phases_and_view(new_page, tools_server, artifacts):
     page = new_page()
     open_page(page, tools_server)
