@@ -96,6 +96,28 @@ def test_server_scheduler_setting_gives_the_same_numbers(bench_samples):
     assert there == here and there["runs"] == 2500
 
 
+def test_a_finished_answer_is_kept_from_when_it_is_ready(api):  # noqa: F811
+    # common practice, no source: a result kept for a while is kept from when it is
+    # ready, so a study that ran longer than the keeping time is still fetched once
+    from phasorbench.web.tolerance_routes import KEEP_SECONDS
+
+    jobs = api.app.state
+    ask = {"netlist": DIVIDER, "probes": ["V(out)"], "runs": 200}
+    long_run = api.post("/api/tolerance/jobs", json=ask).json()["job"]
+    left = api.post("/api/tolerance/jobs", json=ask).json()["job"]
+    for key in (long_run, left):
+        jobs.tolerance_jobs[key]["future"].result(timeout=30)
+    for _ in range(100):                     # the done callbacks have run
+        if all("finished" in jobs.tolerance_jobs[k] for k in (long_run, left)):
+            break
+        time.sleep(0.01)
+    jobs.tolerance_jobs[long_run]["started"] -= 2 * KEEP_SECONDS    # started long ago
+    jobs.tolerance_jobs[left]["finished"] = time.monotonic() - 2 * KEEP_SECONDS  # ready long ago
+    r = api.get(f"/api/tolerance/jobs/{long_run}")
+    assert r.status_code == 200 and r.json()["state"] == "done" and r.json()["runs"] == 200
+    assert api.get(f"/api/tolerance/jobs/{left}").status_code == 404   # never fetched
+
+
 def test_a_finished_study_is_encoded_once_in_its_worker_thread(bench_samples, monkeypatch):
     # common practice, no source: blocking work (encoding a big answer) stays off the
     # asyncio event loop (Python docs, "Developing with asyncio", "Running Blocking

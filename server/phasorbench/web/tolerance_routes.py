@@ -120,8 +120,10 @@ def _jobs(request: Request) -> dict:
         state.tolerance_jobs = {}
     jobs = state.tolerance_jobs
     now = time.monotonic()
+    # a finished answer is kept KEEP_SECONDS from when it was ready (a study may run
+    # longer than that), until its page fetches it
     for key in [k for k, j in jobs.items() if j["future"].done() and
-                now - j["started"] > KEEP_SECONDS]:
+                now - j.get("finished", now) > KEEP_SECONDS]:
         del jobs[key]
     return jobs
 
@@ -143,6 +145,8 @@ async def start_job(body: ToleranceBody, request: Request):
     job["future"] = state.jobs.large.pool.submit(functools.partial(
         _finished, body.netlist, body.ask(), state.settings, progress,
         job["cancel"].is_set))
+    job["future"].add_done_callback(lambda _done: job.__setitem__("finished",
+                                                                  time.monotonic()))
     key = secrets.token_hex(8)
     jobs[key] = job
     return StrictJSONResponse({"job": key})
