@@ -221,3 +221,27 @@ def test_spectrum_components_are_left_out_of_a_sweep():
     r = run_sweep(c, ["V(a)"], 10, 1000, 3)
     assert r["probes"]["V(a)"]["mag"] == pytest.approx([5.0, 5.0, 5.0], rel=1e-12)
     assert any("spectrum components of I1 are left out" in w for w in r["warnings"])
+
+
+def test_every_resonance_is_refined_on_the_sweeps_own_set_up(monkeypatch):
+    # check-values C5 (f0 = 7957.75 Hz, Z(f0) = 2 Ω) for both probes; common practice,
+    # no source: the refinements reuse the sweep's pattern (two assemblies, at 1 Hz and
+    # 2 Hz, to learn it), where an engine per probe would assemble twice more for each
+    from phasorbench.studies import engine
+    counts = {"assemble": 0}
+    assemble = engine.assemble
+
+    def counted(*args, **kwargs):
+        counts["assemble"] += 1
+        return assemble(*args, **kwargs)
+    monkeypatch.setattr(engine, "assemble", counted)
+    circuit = read_circuit("frequency 50 Hz\nVs: voltage a -> 0 20 V\nR1: resistor a -> b 2 ohm\n"
+                           "L1: inductor b -> c 1 mH\nC1: capacitor c -> 0 0.4 uF\n")
+    r = run_sweep(circuit, ["I(R1)", "V(a)/I(R1)"], start=1e3, stop=50e3, points=200)
+    peak, dip = r["resonances"]
+    assert peak["kind"] == "peak" and dip["kind"] == "dip"
+    for found in (peak, dip):
+        assert found["frequency_hz"] == pytest.approx(7957.75, rel=1e-6)     # C5
+    assert peak["value"]["mag"] == pytest.approx(10, rel=1e-9)               # C5: 20 V / 2 Ω
+    assert dip["value"]["mag"] == pytest.approx(2, rel=1e-9)                 # C5: Z(f0) = R
+    assert counts["assemble"] == 2

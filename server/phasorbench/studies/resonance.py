@@ -59,7 +59,11 @@ def _crossing(engine, probe, inner, outer, level) -> float:
     return math.exp((a + b) / 2)
 
 
-def find_resonances(circuit, probes, response, base) -> tuple[list[dict], list[str]]:
+def find_resonances(engine: SweepEngine, probes, response, base) -> tuple[list[dict], list[str]]:
+    """The peaks and dips of each probe's ``response`` (the sweep of ``engine``), each
+    refined on the circuit itself, with its value, Q and bandwidth; and the warnings of
+    impedance resonances near odd harmonics of ``base``. Each probe's refinement solves
+    with ``engine.for_probes``: the sweep's pattern and orderings, set up once."""
     f = response.frequencies
     out, warnings = [], []
     for probe in probes:
@@ -67,14 +71,14 @@ def find_resonances(circuit, probes, response, base) -> tuple[list[dict], list[s
         if len(mag) < 3 or not np.all(np.isfinite(mag)):
             continue
         scale = mag.max()
-        engine = None
+        one = None
         for k, kind, sign in _candidates(mag, scale):
-            engine = engine or SweepEngine(circuit, [probe])
-            f0 = _refine(engine, probe, f[k - 1], f[k + 1], sign)
-            value = _value(engine, probe, f0)
+            one = one or engine.for_probes([probe])
+            f0 = _refine(one, probe, f[k - 1], f[k + 1], sign)
+            value = _value(one, probe, f0)
             level = abs(value) / math.sqrt(2) if kind == "peak" else \
                 abs(value) * math.sqrt(2)
-            band = _bandwidth(engine, probe, f, mag, k, level, kind, f0)
+            band = _bandwidth(one, probe, f, mag, k, level, kind, f0)
             entry = {"probe": probe.text, "kind": kind, "frequency_hz": float(f0),
                      "value": {"re": float(value.real), "im": float(value.imag), "mag": float(abs(value)),
                                "deg": math.degrees(math.atan2(value.imag,

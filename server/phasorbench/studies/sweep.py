@@ -114,7 +114,8 @@ def run_sweep(circuit, probe_texts, start=None, stop=None, points=None,
         warnings.append(f"the spectrum components of {', '.join(spectra[:6])} are left out "
                         "during the sweep (the sweep drives the fundamental)")
     frequencies = grid(start, stop, points, spacing)
-    response = SweepEngine(swept, probes).response(frequencies)
+    engine = SweepEngine(swept, probes)
+    response = engine.response(frequencies)
     if response.singular:
         shown = ", ".join(f"{frequencies[k]:g} Hz" for k in response.singular[:6])
         warnings.append(f"the circuit is singular at {len(response.singular)} "
@@ -125,7 +126,7 @@ def run_sweep(circuit, probe_texts, start=None, stop=None, points=None,
             warnings.append(f"the denominator of {text} is zero at {len(bad)} point(s) "
                             f"from {frequencies[bad[0]]:g} Hz: those points are null")
     from .resonance import find_resonances
-    resonances, more = find_resonances(swept, probes, response, circuit.frequency or None)
+    resonances, more = find_resonances(engine, probes, response, circuit.frequency or None)
     warnings.extend(more)
     return {"title": circuit.title, "frequency_hz": circuit.frequency or None,
             "frequencies_hz": frequencies.tolist(),
