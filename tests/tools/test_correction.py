@@ -69,6 +69,10 @@ def test_alexander_sadiku_power_factor_correction_example():
     assert figures(r["formula_q_var"]) == 1685.26                   # C14
     assert figures(_mag(r["supply_before"]["current"])) == 41.6667  # C14
     assert figures(_mag(r["supply_after"]["current"])) == 35.0877   # C14
+    # power triangle (Alexander & Sadiku, ch. 11): the current a supply delivers into a
+    # lagging load lags its voltage (0° here) by acos(pf), as the branch table shows it
+    assert r["supply_before"]["current"]["deg"] == pytest.approx(-math.degrees(math.acos(0.8)))
+    assert r["supply_after"]["current"]["deg"] == pytest.approx(-math.degrees(math.acos(0.95)))
     assert figures(r["supply_after"]["q_var"]) == 1314.74           # C14: Q2
     assert r["pf_before"] == pytest.approx(0.8, abs=1e-12)
     assert r["pf_after"] == pytest.approx(0.95, abs=1e-12)
@@ -260,6 +264,10 @@ def test_three_phase_400_v_example_both_banks(connection):
             assert figures(_mag(r["supply_before"]["current"][phase])) == 192.45    # C16
             assert figures(_mag(r["supply_after"]["current"][phase])) == 151.934    # C16
             assert figures(_mag(r["bank_line_current"][phase])) == 79.8523          # C16
+        # the line currents the block sends out lag its phase voltages by acos(pf)
+        # (IEEE 1459 balanced case); phase a's voltage stands at 0° in _three_phase
+        lag = r["supply_before"]["current"]["a"]["deg"]
+        assert lag == pytest.approx(-math.degrees(math.acos(0.75)), abs=1e-9)
         assert r["capacitance_f"] == pytest.approx(r["formula_capacitance_f"], rel=1e-12)
     assert len(delta["circuit_lines"]) == 3 and "Cpf1_ab: capacitor A -> B" in \
         delta["circuit_lines"][0]

@@ -36,7 +36,8 @@ def report(*, circuit, source, sources, group, place, target, leading, method, c
     they see, positive); ``pf_before``/``pf_sense_before``, ``pf_after``/``pf_sense_after``
     (from the re-solved circuit), ``pf_error`` (after − target); ``supply_before`` and
     ``supply_after`` (``p_w``/``q_var`` delivered by the source, ``s_va``, ``pf``,
-    ``pf_sense``, ``current``); ``formula_capacitance_f``, ``formula_q_var``,
+    ``pf_sense``, ``current``: the current(s) it delivers into the circuit, the contract's
+    ``delivered``, as the branch table shows them); ``formula_capacitance_f``, ``formula_q_var``,
     ``formula_difference_f`` (exact − formula) and ``formula_difference_rel``;
     ``voltage_before``, ``voltage_after``, ``capacitor_current`` (a phasor for one
     capacitor, a {name: phasor} map for a bank); ``capacitors`` (one row per unit);
@@ -218,8 +219,12 @@ def _source_entry(result: dict, source: str, group) -> dict:
 
 
 def _supply(entry: dict, group) -> dict:
-    """What the source delivers (positive when it feeds), and its current(s)."""
-    current = entry["line_current"] if group is not None else entry["current"]
+    """What the source delivers (positive when it feeds), and the current(s) it sends
+    out into the circuit, as the branch table shows a supply's (its ``delivered``)."""
+    out = entry.get("delivered") or {}
+    current = out.get("line_current" if group is not None else "current")
+    if current is None:        # a source the contract gives no delivered current
+        current = entry["line_current"] if group is not None else entry["current"]
     return {"p_w": -entry["p_w"], "q_var": -entry["q_var"], "s_va": entry["s_va"],
             "pf": entry["pf"], "pf_sense": entry["pf_sense"], "current": current}
 
