@@ -241,6 +241,7 @@ export function createEditor({textarea, scroller, gutter, backdrop, findBar, fin
   /** Replace the whole text (undoable with Ctrl+Z), caret and view at its start. */
   function setText(value) {
     text.setText(value);
+    if (finder) finder.changed();        // a new text: the bar's matches are gone
     render();
   }
 

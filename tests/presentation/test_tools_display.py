@@ -25,6 +25,8 @@ def _fact(shown: dict, key: str) -> dict:
 def test_no_correction_needed_reads_as_an_answer():
     r = correct_power_factor(read_circuit(GOOD), "V1", 0.95)
     shown = correction_display(r)
+    # common practice, no source: a load already at its target needs nothing added,
+    # so there is nothing to append, no units, no ratings and no capacitor cautions
     assert shown["heading"] == "V1: no correction needed"
     assert shown["lines"] == [] and shown["comment"] == "" and shown["capacitors"] == []
     assert shown["standard"] is None and shown["cautions"] == [] and shown["scope_note"]

@@ -185,6 +185,14 @@ Zl: impedance b -> 0 4 + j3 ohm
     b = correct_power_factor(c, "Is", 0.97, at="b", method="bracketed")
     assert r["pf_after"] == pytest.approx(0.97, abs=1e-12)
     assert r["capacitance_f"] == pytest.approx(b["capacitance_f"], rel=1e-12)
+    # KCL at the source: what it sends out of its first terminal (0) into the circuit is
+    # minus its own 20 A, whatever the load (common practice, no source); the branch
+    # table's delivered current is the same one
+    for supply in (r["supply_before"], r["supply_after"]):
+        assert supply["current"]["mag"] == pytest.approx(20, rel=1e-12)
+        assert abs(supply["current"]["deg"]) == pytest.approx(180, abs=1e-9)
+    table = contract(solve(c))["elements"]["Is"]["delivered"]["current"]
+    assert r["supply_before"]["current"] == table
 
 
 def test_the_input_circuit_is_not_changed():

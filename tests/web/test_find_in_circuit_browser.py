@@ -124,3 +124,26 @@ def test_what_is_typed_is_matched_literally(new_page, live_server):
         page.fill("#find-text", query)
         n = count(query)
         assert state(page) == (f"1 of {n:,}" if n else "no match"), query
+
+
+def test_a_new_text_clears_the_bars_matches(new_page, live_server):
+    page = long_page(new_page, live_server)
+    page.click("#find-open")
+    page.fill("#find-text", FAR_NAME)
+    assert state(page) == "1 of 1"
+    # another circuit in the editor (a sample picked): the old match is not kept, and
+    # stepping on finds in the new text, never a line the old one had (a page error
+    # fails the test through the page_errors fixture)
+    sample = page.eval_on_selector("#samples", "m => [...m.options].map(o => o.value).find(v => v)")
+    page.select_option("#samples", sample)
+    page.wait_for_function(f"() => document.getElementById('editor-text').value.length < {len(TEXT)}",
+                           timeout=TIMEOUT_MS)
+    assert page.locator("#backdrop .find-hit").count() == 0
+    assert state(page) == ""
+    page.focus("#find-text")
+    page.keyboard.press("Enter")
+    # common practice, no source: a find searches the text shown, not an earlier one
+    text = page.evaluate("() => document.getElementById('editor-text').value")
+    assert FAR_NAME not in text and state(page) == "no match"
+    page.fill("#find-text", "frequency")
+    assert state(page).startswith("1 of ")

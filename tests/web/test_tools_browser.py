@@ -114,7 +114,8 @@ def test_a_source_above_its_target_needs_no_capacitor(new_page, tools_server, ar
     assert fact_text(page, "pfc-out", "supply") == "4 kW + 3 kvar"
     assert fact_text(page, "pfc-out", "supply_current").startswith("41.67 A")
     assert "no capacitor is needed" in fact_text(page, "pfc-out", "reason")
-    # Nothing to append: no button, no lines box, no standard ratings, no problem list.
+    # Nothing to append: no button, no lines box, no standard ratings, no problem list
+    # (common practice, no source: no capacitor, nothing to add to the circuit).
     for absent in ("#pfc-append", "#pfc-out pre.lines", "#pfc-out .standard-sizes",
                    "#pfc-out .tool-problems", "#pfc-out .tool-cautions"):
         assert page.locator(absent).count() == 0, absent

@@ -221,10 +221,7 @@ def _source_entry(result: dict, source: str, group) -> dict:
 def _supply(entry: dict, group) -> dict:
     """What the source delivers (positive when it feeds), and the current(s) it sends
     out into the circuit, as the branch table shows a supply's (its ``delivered``)."""
-    out = entry.get("delivered") or {}
-    current = out.get("line_current" if group is not None else "current")
-    if current is None:        # a source the contract gives no delivered current
-        current = entry["line_current"] if group is not None else entry["current"]
+    current = entry["delivered"]["line_current" if group is not None else "current"]
     return {"p_w": -entry["p_w"], "q_var": -entry["q_var"], "s_va": entry["s_va"],
             "pf": entry["pf"], "pf_sense": entry["pf_sense"], "current": current}
 

@@ -29,7 +29,7 @@ from ..checks import conductive_parts
 from ..errors import CircuitError, Diagnostic
 from ..superposition import analysis_frequency_only
 from ..model import SOURCE_KINDS, Circuit, Element
-from ..presentation.formatting import eng
+from ..presentation.formatting import eng, power_factor
 from ..results import contract
 from ..solver import solve
 from ._correction_report import ieee18_every_order, not_needed, report
@@ -374,7 +374,8 @@ def _reachable(source: str, line, s_load: complex, theta: float, target: float,
     target); an input error, saying why, for a target a shunt capacitor cannot reach."""
     p, q = s_load.real, s_load.imag
     s = abs(s_load)
-    wanted = f"{target:g} {'leading' if leading else 'lagging'}" if target < 1 else "unity"
+    wanted = power_factor(target, "leading" if leading else "lagging") if target < 1 \
+        else "unity"
     if s == 0 or p <= _NO_POWER * s:
         raise input_error(f"source {source} delivers no real power (P = {p:.6g} W): no "
                           "capacitor brings its power factor to a target",
@@ -385,7 +386,7 @@ def _reachable(source: str, line, s_load: complex, theta: float, target: float,
                 f"within round-off), which meets any target, {wanted} included: there is no "
                 "reactive power to cancel, so no capacitor is needed.")
     phi = math.atan2(q, p)
-    now = f"{now_pf:.6g} {'lagging' if q > 0 else 'leading'}"
+    now = power_factor(now_pf, "lagging" if q > 0 else "leading", digits=6)
     if abs(now_pf - target) <= _ON_TARGET and (target == 1 or (q < 0) == leading):
         return (f"{source} already runs at {now} (P = {eng(p, 'W')}, Q = {eng(q, 'var')}), on "
                 f"the target {wanted}: no capacitor is needed.")

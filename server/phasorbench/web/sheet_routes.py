@@ -18,7 +18,7 @@ from pydantic import BaseModel, Field
 
 from . import api, answers
 from .api import CircuitBody, CorrectionAsk, PortAsk, Text
-from .jsonsafe import utf8
+from .jsonsafe import SlicedResponse, utf8
 from .limits import check_size
 from .settings import Settings
 from .study_routes import FormulaAsk, check_sweep_work
@@ -147,7 +147,7 @@ async def sheet(body: SheetBody, request: Request):
     if failed is not None:
         return failed
     html, filename = answer
-    return Response(html, media_type="text/html; charset=utf-8", headers={
+    return SlicedResponse(html, media_type="text/html; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="{filename}"',
         "X-Content-Type-Options": "nosniff",
         "Cache-Control": "no-store",
