@@ -24,8 +24,8 @@ def _table(headings: list[str], rows: list[list[str]], right: set[int]) -> list[
 def header_lines(result: dict) -> list[str]:
     """Title, frequency, amplitude convention, sign convention and the balance check."""
     balance = result["balance"]
-    convention = ("RMS phasors, S = V·I*" if result["amplitudes"] == "rms"
-                  else "peak phasors, S = ½·V·I*")
+    convention = f"{shown_word(result)} phasors, " + (
+        "S = V·I*" if result["amplitudes"] == "rms" else "S = ½·V·I*")
     own = result.get("amplitudes_input")
     if own and own != result["amplitudes"]:
         # --show read the answer the other way (the page's words: "shown as ...; input in ...")

@@ -15,6 +15,7 @@ import textwrap
 from .common import EXIT_OK, dump_json, load_source, print_warnings
 from .output import voltage_argument
 from ..errors import CircuitError, Diagnostic
+from ..presentation.amplitudes import shown_word
 from ..presentation.formatting import eng, phasor, power_factor, rect
 
 __all__ = ["add_tool_commands"]
@@ -138,19 +139,12 @@ def _rows(pairs) -> list[str]:
 
 
 def _convention(result: dict) -> str:
-    return "RMS phasors" if result["amplitudes"] == "rms" else "peak phasors"
-
-
-def _supply_current(supply: dict) -> str:
-    current = supply["current"]
-    if "mag" in current:
-        return phasor(current, "A")
-    return ", ".join(f"{k} {phasor(v, 'A')}" for k, v in current.items())
+    return f"{shown_word(result)} phasors"
 
 
 def correction_text(r: dict) -> str:
     """The terminal report of ``correct_power_factor``'s result."""
-    from ..presentation.tools_display import correction_display, supply_power
+    from ..presentation.tools_display import correction_display, supply_current, supply_power
     if r.get("needed") is False:
         return _not_needed_text(r, correction_display(r))
     before, after = r["supply_before"], r["supply_after"]
@@ -168,7 +162,8 @@ def correction_text(r: dict) -> str:
                          f"{power_factor(r['pf_after'], r['pf_sense_after'], 9)} "
                          f"(target {power_factor(r['target_pf'], r['target_sense'])})"),
         ("supply", f"{supply_power(before)} → {supply_power(after)}"),
-        ("supply current", f"{_supply_current(before)} → {_supply_current(after)}"),
+        ("supply current", f"{supply_current(before['current'])} → "
+                           f"{supply_current(after['current'])}"),
         ("ideal-bus formula", f"{eng(r['formula_capacitance_f'], 'F', 6)}{each} from "
                               f"Qc = P(tanφ1 − tanφ2) = {eng(r['formula_q_var'], 'var')} "
                               f"(exact differs by {100 * diff:+.3f} %)"),

@@ -356,7 +356,7 @@ def group_detail(result: dict, name: str) -> dict:
     ]
     return {
         "name": name,
-        "magnitudes": "RMS" if result.get("amplitudes", "rms") == "rms" else "peak",
+        "magnitudes": shown_word(result),
         "heading": f"{name}: {g.get('kind', '')} {g.get('connection', '')}, lines "
                    f"{_group_terminals(name, g)}",
         "note": (f"Sequence values are Fortescue's of the {what} voltages and currents, "

@@ -6,6 +6,7 @@ numbers through ``formatting.py``.
 
 from __future__ import annotations
 
+from .amplitudes import shown_word
 from .display import _percent, _signed_percent
 from .formatting import MISSING, eng, phasor, plain, power_factor, rect
 
@@ -17,7 +18,8 @@ def _fact(key: str, term: str, value: str, flag: str | None = None) -> dict:
     return {"key": key, "term": term, "value": value, "flag": flag}
 
 
-def _supply_current(current) -> str:
+def supply_current(current) -> str:
+    """A supply's current(s) as text: one phasor, or each line's (``a 41.67 A ∠-36.87°, …``)."""
     if isinstance(current, dict) and "mag" in current:
         return phasor(current, "A")
     return ", ".join(f"{k} {phasor(v, 'A')}" for k, v in (current or {}).items())
@@ -68,8 +70,8 @@ def correction_display(r: dict) -> dict:
         _fact("supply", "supply P + jQ",
               f"{eng(before['p_w'], 'W')} + {eng(before['q_var'], 'var')} → "
               f"{eng(after['p_w'], 'W')} + {eng(after['q_var'], 'var')}"),
-        _fact("supply_current", "supply current", f"{_supply_current(before['current'])} → "
-                                                  f"{_supply_current(after['current'])}"),
+        _fact("supply_current", "supply current", f"{supply_current(before['current'])} → "
+                                                  f"{supply_current(after['current'])}"),
         _fact("formula", "textbook estimate",
               f"{eng(r['formula_capacitance_f'], 'F', 6)}{each} from Qc = P(tanφ1 − tanφ2) = "
               f"{eng(r['formula_q_var'], 'var')}, C = Qc/(ωV²) on an ideal bus"),
@@ -85,7 +87,7 @@ def correction_display(r: dict) -> dict:
         facts += [_fact("voltage", "voltage change", f"{_signed_percent(r['voltage_rise_rel'])} "
                                                      "at the most raised unit"),
                   _fact("capacitor_current", "bank line currents",
-                        _supply_current(r["bank_line_current"]))]
+                        supply_current(r["bank_line_current"]))]
     if r["harmonic_order"] is None:
         facts.append(_fact("resonance", "parallel resonance",
                            "none estimated (no inductive network behind this place)"))
@@ -165,7 +167,7 @@ def _not_needed(r: dict) -> dict:
                                     f"target {target} — ✓ met already", "ok"),
         _fact("supply", "supply P + jQ",
               supply_power(supply, floor=_UNITY_Q * (supply.get("s_va") or 0.0))),
-        _fact("supply_current", "supply current", _supply_current(supply["current"])),
+        _fact("supply_current", "supply current", supply_current(supply["current"])),
         _fact("reason", "why", r["reason"]),
     ]
     return {
@@ -246,6 +248,6 @@ def port_display(r: dict) -> dict:
         facts.append(_fact("resistive", "best resistor (|Z_th|)",
                            f"{eng(r['resistive_load_ohm'], 'Ω')} takes "
                            f"{eng(r['resistive_power_w'], 'W')}"))
-    amps = "RMS" if r.get("amplitudes", "rms") == "rms" else "peak"
+    amps = shown_word(r)
     return {"heading": f"Port {a} → {b} at {eng(r.get('frequency_hz'), 'Hz')} ({amps} phasors)",
             "facts": facts, "notes": list(r.get("notes", []))}

@@ -15,6 +15,7 @@ from collections.abc import Sequence
 from typing import NamedTuple
 
 from .. import formatting as fmt
+from ..amplitudes import shown_word
 from ._svg import (ELEMENT_PAIRS, GRID, GRID_STRONG, INK, LINE_STYLES, nice_ceiling, num,
                    svg_root, tag, text, title)
 from .labels import ASCENT, DESCENT, Placer, leader, overlap, text_box, text_width
@@ -318,7 +319,7 @@ def _diagram(result: dict, data: list[_Pair], width: int, height: int, caption: 
     placer = Placer(width, height)
     body, grid_labels = _grid(cx, cy, radius)
 
-    amps = "RMS" if result.get("amplitudes", "rms") == "rms" else "peak"
+    amps = shown_word(result)
     first = data[0]
     zv0, zi0 = abs(first.v) <= v_zero, abs(first.i) <= i_zero
     own = first.v_label == first.i_label == first.element
