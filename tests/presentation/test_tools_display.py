@@ -62,3 +62,14 @@ def test_a_normal_correction_still_has_its_lines():
 def test_supply_power_writes_the_sign_once(q, floor, words):
     # common practice, no source: a complex power is written P ± j|Q|, one sign.
     assert supply_power({"p_w": 4000.0, "q_var": q}, floor) == words
+
+
+def test_a_correction_to_a_leading_target_writes_the_supplys_q_with_its_sign_once():
+    # power triangle (Alexander & Sadiku, ch. 11): at 0.9 leading from 8 + j2 Ω the
+    # supply's Q is −P·tan(acos 0.9) after the capacitor; common practice, no source:
+    # it is written "P − |Q|", never "P + −|Q|"
+    r = correct_power_factor(read_circuit(GOOD), "V1", 0.9, leading=True)
+    assert r["supply_after"]["q_var"] == pytest.approx(
+        -r["supply_after"]["p_w"] * math.tan(math.acos(0.9)), rel=1e-9)
+    after = _fact(correction_display(r), "supply")["value"].split(" → ")[1]
+    assert " − " in after and "+ -" not in after and "−" not in after.split(" − ")[1]

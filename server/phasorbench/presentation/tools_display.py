@@ -67,9 +67,7 @@ def correction_display(r: dict) -> dict:
         _fact("pf", "power factor", f"{power_factor(r['pf_before'], r['pf_sense_before'])} → "
                                     f"{power_factor(r['pf_after'], r['pf_sense_after'])} (target "
                                     f"{power_factor(r['target_pf'], r['target_sense'])})"),
-        _fact("supply", "supply P + jQ",
-              f"{eng(before['p_w'], 'W')} + {eng(before['q_var'], 'var')} → "
-              f"{eng(after['p_w'], 'W')} + {eng(after['q_var'], 'var')}"),
+        _fact("supply", "supply P + jQ", f"{supply_power(before)} → {supply_power(after)}"),
         _fact("supply_current", "supply current", f"{supply_current(before['current'])} → "
                                                   f"{supply_current(after['current'])}"),
         _fact("formula", "textbook estimate",

@@ -97,14 +97,7 @@ def report(*, circuit, source, sources, group, place, target, leading, method, c
 
     discharge = _discharge(rows, capacitance)
     out = {
-        "source": source, "source_kind": group.kind if group is not None else
-        circuit.elements[source].kind,
-        "frequency_hz": freq, "amplitudes": circuit.amplitudes,
-        "place": {"connection": place["connection"], "nodes": place["nodes"],
-                  "star": place["star"], "star_floating": place["floating"],
-                  "description": place["description"]},
-        "target_pf": target, "target_sense": "unity" if target == 1 else
-        ("leading" if leading else "lagging"), "method": method,
+        **_head(circuit, source, group, place, target, leading), "method": method,
         "needed": True, "reason": None,
         "capacitance_f": capacitance, "units": len(rows),
         "q_var": sum(r["q_var"] for r in rows),
@@ -159,14 +152,7 @@ def not_needed(*, circuit, source, group, place, target, leading, before, model,
     entry = _source_entry(before, source, group)
     supply = _supply(entry, group)
     out = {
-        "source": source, "source_kind": group.kind if group is not None else
-        circuit.elements[source].kind,
-        "frequency_hz": circuit.frequency, "amplitudes": circuit.amplitudes,
-        "place": {"connection": place["connection"], "nodes": place["nodes"],
-                  "star": place["star"], "star_floating": place["floating"],
-                  "description": place["description"]},
-        "target_pf": target, "target_sense": "unity" if target == 1 else
-        ("leading" if leading else "lagging"), "method": "none needed",
+        **_head(circuit, source, group, place, target, leading), "method": "none needed",
         "needed": False, "reason": reason,
         "capacitance_f": 0.0, "units": 0, "q_var": 0.0,
         "pf_before": entry["pf"], "pf_sense_before": entry["pf_sense"],
@@ -189,6 +175,20 @@ def not_needed(*, circuit, source, group, place, target, leading, before, model,
     out["scope_note"] = caution_texts.SCOPE_NOTE
     out["standard_sizes"] = None
     return out
+
+
+def _head(circuit, source, group, place, target, leading) -> dict:
+    """The fields every correction result opens with: what was asked, where."""
+    return {
+        "source": source, "source_kind": group.kind if group is not None else
+        circuit.elements[source].kind,
+        "frequency_hz": circuit.frequency, "amplitudes": circuit.amplitudes,
+        "place": {"connection": place["connection"], "nodes": place["nodes"],
+                  "star": place["star"], "star_floating": place["floating"],
+                  "description": place["description"]},
+        "target_pf": target, "target_sense": "unity" if target == 1 else
+        ("leading" if leading else "lagging"),
+    }
 
 
 def capacitance_text(c: float) -> str:
